@@ -1,0 +1,4 @@
+export * from "./auth";
+export * from "./registry";
+export * from "./workflow";
+export * from "./sets";

@@ -1,0 +1,65 @@
+import { and, eq } from "drizzle-orm";
+import { data, redirect } from "react-router";
+import { db } from "./db/client";
+import { familyLeads, users, type Role } from "./db/schema";
+import { getSession } from "./session";
+
+export type CurrentUser = {
+  id: number;
+  email: string;
+  name: string;
+  role: Role;
+  leadFamilyIds: number[];
+};
+
+const RANK: Record<Role, number> = { reader: 0, contributor: 1, lead: 2, admin: 3 };
+
+export function hasRole(user: Pick<CurrentUser, "role">, role: Role): boolean {
+  return RANK[user.role] >= RANK[role];
+}
+
+export async function loadUser(userId: number): Promise<CurrentUser | null> {
+  const [row] = await db().select().from(users).where(and(eq(users.id, userId), eq(users.active, true))).limit(1);
+  if (!row) return null;
+  const leads = await db().select({ familyId: familyLeads.familyId }).from(familyLeads).where(eq(familyLeads.userId, row.id));
+  return { id: row.id, email: row.email, name: row.name, role: row.role, leadFamilyIds: leads.map((l) => l.familyId) };
+}
+
+export async function getOptionalUser(request: Request): Promise<CurrentUser | null> {
+  const session = await getSession(request);
+  const userId = session.get("userId");
+  if (!userId) return null;
+  return loadUser(userId);
+}
+
+function signInUrl(request: Request): string {
+  const url = new URL(request.url);
+  const back = url.pathname + url.search;
+  return `/sign-in?returnTo=${encodeURIComponent(back)}`;
+}
+
+export function forbidden(message = "Your role does not allow this."): never {
+  throw data({ message }, { status: 403, statusText: "Forbidden" });
+}
+
+export async function requireUser(request: Request): Promise<CurrentUser> {
+  const user = await getOptionalUser(request);
+  if (!user) throw redirect(signInUrl(request));
+  return user;
+}
+
+export async function requireRole(request: Request, role: Role): Promise<CurrentUser> {
+  const user = await requireUser(request);
+  if (!hasRole(user, role)) forbidden(`This page needs the ${role} role.`);
+  return user;
+}
+
+export function isLeadOf(user: CurrentUser, familyId: number): boolean {
+  return user.role === "admin" || (user.role === "lead" && user.leadFamilyIds.includes(familyId));
+}
+
+export async function requireLeadOf(request: Request, familyId: number): Promise<CurrentUser> {
+  const user = await requireRole(request, "lead");
+  if (!isLeadOf(user, familyId)) forbidden("Only a lead of this material family may do this.");
+  return user;
+}

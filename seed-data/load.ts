@@ -1,0 +1,47 @@
+import { eq, sql } from "drizzle-orm";
+import { closeDb, db, type Db } from "~/.server/db/client";
+import { familyLeads, materialFamilies, users } from "~/.server/db/schema";
+import { FAMILIES, PEOPLE } from "./team";
+
+// Idempotent: every row is looked up by its natural key before it is written.
+export async function loadTeam(d: Db) {
+  for (const f of FAMILIES) {
+    await d.insert(materialFamilies).values(f).onDuplicateKeyUpdate({ set: { key: sql`\`key\`` } });
+  }
+  const families = await d.select().from(materialFamilies);
+  const familyId = new Map(families.map((f) => [f.key, f.id]));
+  for (const p of PEOPLE) {
+    await d.insert(users).values({ email: p.email, name: p.name, role: p.role, active: p.active, notifyMode: p.notifyMode })
+      .onDuplicateKeyUpdate({ set: { email: sql`email` } });
+    const [u] = await d.select().from(users).where(eq(users.email, p.email));
+    for (const key of p.leads) {
+      await d.insert(familyLeads).values({ userId: u.id, familyId: familyId.get(key)! }).onDuplicateKeyUpdate({ set: { userId: sql`user_id` } });
+    }
+  }
+  const admin = process.env.BANDLEDGER_ADMIN_EMAIL;
+  if (admin) {
+    await d.insert(users).values({ email: admin.toLowerCase(), name: admin.split("@")[0], role: "admin", active: true })
+      .onDuplicateKeyUpdate({ set: { role: "admin", active: true } });
+  }
+}
+
+export async function loadDemo(d: Db) {
+  await loadTeam(d);
+  const registry = await import("./registry").catch(() => null);
+  if (registry) await registry.loadRegistry(d);
+}
+
+async function main() {
+  const ifEmpty = process.argv.includes("--if-empty");
+  const d = db();
+  const [{ n }] = await d.select({ n: sql<number>`count(*)` }).from(users);
+  if (ifEmpty && Number(n) > 0) {
+    console.error("bandledger: demo data already present, keeping it");
+  } else {
+    await loadDemo(d);
+    console.error("bandledger: demo data loaded");
+  }
+  await closeDb();
+}
+
+if (import.meta.url === `file://${process.argv[1]}`) await main();

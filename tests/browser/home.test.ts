@@ -1,0 +1,38 @@
+import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
+import type { BrowserContext } from "playwright-core";
+import { artifactPath, launchBrowser } from "../support/browser";
+
+let browser: BrowserContext;
+beforeAll(async () => {
+  browser = await launchBrowser();
+});
+afterAll(async () => browser?.close());
+
+describe("home page in Chromium", () => {
+  it("renders the shell in IBM Plex Sans shipped with the app", async () => {
+    const page = await browser.newPage();
+    const response = await page.goto(inject("appUrl") + "/");
+    expect(response?.status()).toBe(200);
+    await expect(page.locator("header").getByText("Bandledger", { exact: true })).toBeTruthy();
+    const fonts = await page.evaluate(async () => {
+      await document.fonts.ready;
+      const loaded = [...document.fonts].filter((f) => f.status === "loaded").map((f) => f.family.replace(/"/g, ""));
+      return { computed: getComputedStyle(document.body).fontFamily, loaded, check: document.fonts.check('16px "IBM Plex Sans"') };
+    });
+    expect(fonts.computed.split(",")[0].replace(/"/g, "").trim()).toBe("IBM Plex Sans");
+    expect(fonts.loaded).toContain("IBM Plex Sans");
+    const fontRequests = await page.evaluate(() => performance.getEntriesByType("resource").map((e) => e.name).filter((n) => /ibm-plex-sans-latin-400/.test(n)));
+    expect(fontRequests.length).toBeGreaterThan(0);
+    expect(fontRequests.every((u) => u.startsWith(inject("appUrl")))).toBe(true);
+    await page.screenshot({ path: artifactPath("home.png"), fullPage: true });
+    await page.close();
+  });
+
+  it("answers an unknown address with our own 404 page", async () => {
+    const page = await browser.newPage();
+    const response = await page.goto(inject("appUrl") + "/no/such/page");
+    expect(response?.status()).toBe(404);
+    await expect(page.getByRole("heading", { name: "Nothing is filed under this address" }).isVisible()).resolves.toBe(true);
+    await page.close();
+  });
+});
