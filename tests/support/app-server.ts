@@ -2,6 +2,7 @@ import { spawn, type ChildProcess } from "node:child_process";
 import { existsSync, mkdirSync, openSync } from "node:fs";
 import path from "node:path";
 import { freePort } from "./ports";
+import { TEST_SESSION_SECRET } from "./session";
 
 export type AppServer = { url: string; port: number; process: ChildProcess; stop: () => Promise<void> };
 
@@ -28,6 +29,7 @@ export async function startAppServer(options: {
       SMTP_URL: `smtp://127.0.0.1:${options.smtpPort}`,
       BANDLEDGER_PUBLIC_URL: url,
       BANDLEDGER_MAILBOX: "on",
+      SESSION_SECRET: TEST_SESSION_SECRET,
       BANDLEDGER_MAILBOX_DIR: options.mailboxDir,
       VITEST: "",
       ...options.extraEnv,
