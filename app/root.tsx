@@ -4,15 +4,15 @@ import {
 import type { Route } from "./+types/root";
 import { AppShell, type ShellUser } from "./components/app-shell";
 import { FlashMessage } from "./components/flash-message";
+import { databaseAvailable } from "./.server/db/health";
+import { getOptionalUser } from "./.server/permissions";
+import { commitSession, getSession } from "./.server/session";
 import "./app.css";
 
 export async function loader({ request }: Route.LoaderArgs) {
-  const { databaseAvailable } = await import("./.server/db/health");
   if (!(await databaseAvailable())) {
     throw data({ code: "database_unavailable" }, { status: 503, statusText: "Database unavailable" });
   }
-  const { getOptionalUser } = await import("./.server/permissions");
-  const { getSession, commitSession } = await import("./.server/session");
   const user = await getOptionalUser(request);
   const session = await getSession(request);
   const flash = session.get("flash") ?? null;

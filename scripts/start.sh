@@ -32,7 +32,7 @@ say "building the app"
 npx react-router build >/dev/null
 
 if [ -z "${SMTP_URL:-}" ]; then
-  npx tsx app/.server/mail/sink-cli.ts &
+  node --import tsx app/.server/mail/sink-cli.ts &
   pids+=($!)
 fi
 
