@@ -4,6 +4,7 @@ import {
 import type { Route } from "./+types/root";
 import { AppShell, type ShellUser } from "./components/app-shell";
 import { FlashMessage } from "./components/flash-message";
+import { useNonce } from "./components/nonce";
 import { databaseAvailable } from "./.server/db/health";
 import { getOptionalUser } from "./.server/permissions";
 import { commitSession, getSession } from "./.server/session";
@@ -26,6 +27,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 export const meta: Route.MetaFunction = () => [{ title: "Bandledger" }];
 
 export function Layout({ children }: { children: React.ReactNode }) {
+  const nonce = useNonce();
   return (
     <html lang="en">
       <head>
@@ -37,8 +39,8 @@ export function Layout({ children }: { children: React.ReactNode }) {
       </head>
       <body className="antialiased">
         {children}
-        <ScrollRestoration />
-        <Scripts />
+        <ScrollRestoration nonce={nonce} />
+        <Scripts nonce={nonce} />
       </body>
     </html>
   );

@@ -28,6 +28,26 @@ describe("home page in Chromium", () => {
     await page.close();
   });
 
+  it("sends a nonce-based Content-Security-Policy that the page's own scripts satisfy", async () => {
+    const page = await browser.newPage();
+    const violations: string[] = [];
+    page.on("console", (m) => {
+      if (/Content Security Policy|Refused to/i.test(m.text())) violations.push(m.text());
+    });
+    const response = await page.goto(inject("appUrl") + "/");
+    const csp = response?.headers()["content-security-policy"] ?? "";
+    const nonce = /'nonce-([^']+)'/.exec(csp)?.[1];
+    expect(nonce).toBeTruthy();
+    expect(csp).toContain("frame-ancestors 'none'");
+    expect(response?.headers()["x-content-type-options"]).toBe("nosniff");
+    const again = await (await fetch(inject("appUrl") + "/")).headers.get("content-security-policy");
+    expect(again).not.toContain(nonce!);
+    // Hydration ran: React Router's client router exists only when its scripts were allowed to run.
+    await page.waitForFunction(() => Boolean((window as unknown as { __reactRouterRouteModules?: unknown }).__reactRouterRouteModules));
+    expect(violations).toEqual([]);
+    await page.close();
+  });
+
   it("answers an unknown address with our own 404 page", async () => {
     const page = await browser.newPage();
     const response = await page.goto(inject("appUrl") + "/no/such/page");
