@@ -27,8 +27,6 @@ export async function loadTeam(d: Db) {
 
 export async function loadDemo(d: Db) {
   await loadTeam(d);
-  const registry = await import("./registry").catch(() => null);
-  if (registry) await registry.loadRegistry(d);
 }
 
 async function main() {
