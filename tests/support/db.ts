@@ -19,7 +19,7 @@ export async function freshDatabase(label = "t"): Promise<TestDatabase> {
   return {
     url, name, db, pool,
     drop: async () => {
-      await pool.end();
+      await pool.end().catch(() => undefined);
       await dropDatabase(base, name);
     },
   };
