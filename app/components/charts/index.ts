@@ -1,0 +1,3 @@
+export { EkChart, type EkChartGap, type EkChartProps } from "./ek-chart";
+export { TemperatureChart, type TemperatureChartProps, type TemperatureSeries } from "./temperature-chart";
+export { CompositionChart, type CompositionChartProps, type CompositionSeries } from "./composition-chart";

@@ -1,0 +1,201 @@
+import { execFile } from "node:child_process";
+import { fileURLToPath } from "node:url";
+import { describe, expect, it } from "vitest";
+import { main } from "../../app/cli/main";
+
+// The real command, as `npm run bandledger -- …` runs it. Check values from /work/shared/reference/check-values.md:
+// [V01] Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001); [Var67] Varshni, Physica 34, 149 (1967);
+// [Kane57] Kane, J. Phys. Chem. Solids 1, 249 (1957); [Vegard21] Vegard, Z. Phys. 5, 17 (1921);
+// [AS] Abramowitz & Stegun, Table 20.1; "calc" = computed from the listed inputs with the formula named.
+const root = fileURLToPath(new URL("../..", import.meta.url));
+
+interface Run {
+  code: number;
+  stdout: string;
+  stderr: string;
+}
+
+function bandledger(...args: string[]): Promise<Run> {
+  return new Promise((resolve) => {
+    execFile("node_modules/.bin/tsx", ["app/cli/main.ts", ...args], { cwd: root }, (error, stdout, stderr) => {
+      const code = error ? (typeof error.code === "number" ? error.code : 1) : 0;
+      resolve({ code, stdout, stderr });
+    });
+  });
+}
+
+/** The same dispatcher in this process: quick, for the many variations. */
+async function inProcess(...args: string[]): Promise<Run> {
+  let stdout = "";
+  let stderr = "";
+  const code = await main(args, { stdout: (t) => void (stdout += t), stderr: (t) => void (stderr += t) });
+  return { code, stdout, stderr };
+}
+
+async function json(...args: string[]): Promise<Record<string, unknown>> {
+  const run = await bandledger(...args, "--json");
+  expect(run.code, run.stderr).toBe(0);
+  return JSON.parse(run.stdout);
+}
+
+async function jsonInProcess(...args: string[]): Promise<Record<string, unknown>> {
+  const run = await inProcess(...args, "--json");
+  expect(run.code, run.stderr).toBe(0);
+  return JSON.parse(run.stdout);
+}
+
+function significantDigits(decimal: string): number {
+  return decimal.replace(/^-/, "").replace(".", "").replace(/^0+/, "").length;
+}
+
+/** Agrees with a published value to every digit printed (half a unit in its last place, plus slack). */
+function expectPrinted(actual: number, printed: string, slack = 0) {
+  const decimals = printed.split(".")[1]?.length ?? 0;
+  expect(Math.abs(actual - Number(printed))).toBeLessThanOrEqual(0.5 * 10 ** -decimals * (1 + 1e-9) + slack);
+}
+
+/** A decimal string with at least 10 significant digits that agrees with the printed value. */
+function expectDecimal(actual: unknown, printed: string, slack = 0) {
+  expect(typeof actual).toBe("string");
+  expect(significantDigits(actual as string)).toBeGreaterThanOrEqual(10);
+  expectPrinted(Number(actual), printed, slack);
+}
+
+const EPSILON_PI_OVER_A = 1.1765931068074729; // ε(π/a) for a = 5.65325 Å (calc, 1.176593107 eV)
+
+describe.concurrent("bandledger, the real command", { timeout: 30_000 }, () => {
+  it("nfe: a pure cosine with q = 5 gives the Mathieu band edges ε1·b1, ε1·a1 [AS]", async () => {
+    const out = await json("nfe", "--period", "5.65325", "--coefficient", `1:${5 * EPSILON_PI_OVER_A}`);
+    expect(Object.keys(out)).toEqual(["gap", "firstOrder", "centralEquation", "verdict"]);
+    expect(out.gap).toBe(1);
+    expect(out.verdict).toBe("none");
+    const central = out.centralEquation as Record<string, unknown>;
+    expect(Object.keys(central)).toEqual(["gapEv", "lowerEv", "upperEv", "planeWaves"]);
+    expect(Number.isInteger(central.planeWaves)).toBe(true);
+    for (const key of ["gapEv", "lowerEv", "upperEv"]) expect(significantDigits(central[key] as string)).toBeGreaterThanOrEqual(10);
+    // Table 20.1 prints 8 decimals; the edges are converged to 1e-9 eV, i.e. 1e-9/ε1 in these units.
+    expectPrinted(Number(central.lowerEv) / EPSILON_PI_OVER_A, "-5.79008060", 1e-9);
+    expectPrinted(Number(central.upperEv) / EPSILON_PI_OVER_A, "1.85818754", 1e-9);
+    // First order: 2|U| = 10 ε(π/a), ten times the published 1.176593107 eV.
+    expectDecimal((out.firstOrder as Record<string, unknown>).gapEv, "11.76593107", 5e-8);
+  });
+
+  it("calc varshni: GaAs Γ at 300 K is 1.4224821 eV [Var67] with [V01] (calc)", async () => {
+    const out = await json("calc", "varshni", "--eg0", "1.519", "--alpha", "0.5405", "--beta", "204", "--temperature", "300");
+    expect(Object.keys(out)).toEqual(["valueEv"]);
+    expectDecimal(out.valueEv, "1.4224821");
+  });
+
+  it("calc bowing: Al(0.3)Ga(0.7)As Γ with C = −0.127 + 1.310x is 1.93714 eV [V01] (calc)", async () => {
+    const out = await json("calc", "bowing", "--eg-a", "3.099", "--eg-b", "1.519", "--c0", "-0.127", "--c1", "1.310", "--x", "0.3");
+    expectDecimal(out.valueEv, "1.93714");
+  });
+
+  it("calc kane: GaAs m* = 0.0670188 m0 [Kane57] with [V01] (calc)", async () => {
+    const out = await json("calc", "kane", "--ep", "28.8", "--f", "-1.94", "--eg", "1.519", "--delta", "0.341");
+    expect(Object.keys(out)).toEqual(["massM0"]);
+    expectDecimal(out.massM0, "0.0670188");
+  });
+
+  it("calc vegard: Al(0.3)Ga(0.7)As a = 5.655605 Å [Vegard21] with [V01] (calc)", async () => {
+    const out = await json("calc", "vegard", "--a-a", "5.6611", "--a-b", "5.65325", "--x", "0.3");
+    expect(Object.keys(out)).toEqual(["valueAngstrom"]);
+    expectDecimal(out.valueAngstrom, "5.655605");
+  });
+
+  for (const [args, message] of [
+    [["frobnicate"], /unknown command "frobnicate"/],
+    [["nfe", "--coefficient", "1:0.5"], /--period is required/],
+  ] as [string[], RegExp][]) {
+    it(`exits 2 with one line on stderr: ${args.join(" ")}`, async () => {
+      const run = await bandledger(...args);
+      expect(run.code).toBe(2);
+      expect(run.stdout).toBe("");
+      expect(run.stderr.trimEnd().split("\n")).toHaveLength(1);
+      expect(run.stderr).toMatch(message);
+    });
+  }
+});
+
+describe("bandledger, its dispatcher in process", () => {
+  it("nfe: the two-band gap 2|U| to first order, and pass / warn / fail against a stated gap [Kittel] (calc)", async () => {
+    const args = ["nfe", "--period", "5.65325", "--coefficient", "1:0.1"];
+    const none = await jsonInProcess(...args);
+    expectDecimal((none.firstOrder as Record<string, unknown>).gapEv, "0.2");
+    const central = Number((none.centralEquation as Record<string, unknown>).gapEv);
+    expect(Math.abs(central - 0.2)).toBeLessThan(1e-4);
+    expect((await jsonInProcess(...args, "--stated", String(central))).verdict).toBe("pass");
+    expect((await jsonInProcess(...args, "--stated", String(central + 0.02))).verdict).toBe("warn");
+    expect((await jsonInProcess(...args, "--stated", "0.4", "--tolerance", "0.01")).verdict).toBe("fail");
+  });
+
+  it("nfe: a period in nm, a second gap, several coefficients and a mass", async () => {
+    const rest = ["--coefficient", "1:0.5", "--coefficient", "2:-0.2", "--gap", "2", "--mass", "0.5"];
+    const angstrom = await jsonInProcess("nfe", "--period", "5.65325", ...rest);
+    const nm = await jsonInProcess("nfe", "--period", "0.565325", "--period-unit", "nm", ...rest);
+    expect(nm).toEqual(angstrom);
+    expect(angstrom.gap).toBe(2);
+    expectDecimal((angstrom.firstOrder as Record<string, unknown>).gapEv, "0.4");
+  });
+
+  it("calc: Varshni at 77 K is 1.507596 eV [Var67] with [V01] (calc); bowing returns its end point at x = 1", async () => {
+    const cold = await jsonInProcess("calc", "varshni", "--eg0", "1.519", "--alpha", "0.5405", "--beta", "204", "--temperature", "77");
+    expectDecimal(cold.valueEv, "1.507596");
+    const end = await jsonInProcess("calc", "bowing", "--eg-a", "3.099", "--eg-b", "1.519", "--c0", "-0.127", "--x", "1");
+    expectDecimal(end.valueEv, "3.099");
+  });
+
+  it("prints a readable aligned table without --json", async () => {
+    const run = await inProcess("calc", "kane", "--ep", "28.8", "--f", "-1.94", "--eg", "1.519", "--delta", "0.341");
+    expect(run.code).toBe(0);
+    expect(run.stdout).toMatch(/Kane/);
+    const rows = run.stdout.trim().split("\n").slice(1);
+    const valueEnds = rows.map((row) => row.replace(/\s+(eV|m0)$/, "").length);
+    expect(new Set(valueEnds).size).toBe(1);
+    expect(run.stdout).toMatch(/m\*\s+0\.0670188\d+\s+m0/);
+  });
+
+  it("nfe prints a table with the verdict and residual", async () => {
+    const run = await inProcess("nfe", "--period", "5.65325", "--coefficient", "1:0.1", "--stated", "0.2");
+    expect(run.stdout).toMatch(/central-equation gap\s+0\.1999\d+\s+eV/);
+    expect(run.stdout).toMatch(/residual \(stated − central\)\s+0\.0000\d+\s+eV/);
+    expect(run.stdout).toMatch(/verdict\s+pass/);
+  });
+
+  it("prints usage with --help, for each command too, and exits 0", async () => {
+    for (const args of [["--help"], ["nfe", "--help"], ["calc", "--help"], ["calc", "bowing", "--help"], ["help"]]) {
+      const run = await inProcess(...args);
+      expect(run.code).toBe(0);
+      expect(run.stdout).toMatch(/usage: bandledger/);
+    }
+  });
+
+  const bad: [string[], RegExp][] = [
+    [["frobnicate"], /unknown command "frobnicate"/],
+    [["calc", "frobnicate"], /unknown calculation "frobnicate"/],
+    [["calc"], /calc needs a calculation/],
+    [["nfe", "--coefficient", "1:0.5"], /--period is required/],
+    [["nfe", "--period", "5.65325"], /--coefficient is required/],
+    [["nfe", "--period", "abc", "--coefficient", "1:0.5"], /--period must be a number/],
+    [["nfe", "--period", "-5", "--coefficient", "1:0.5"], /--period must be positive/],
+    [["nfe", "--period", "5", "--coefficient", "0.5"], /--coefficient must be n:U/],
+    [["nfe", "--period", "5", "--coefficient", "1:0.5", "--coefficient", "1:0.2"], /--coefficient 1 is given twice/],
+    [["nfe", "--period", "5", "--coefficient", "1:0.5", "--gap", "0"], /--gap/],
+    [["nfe", "--period", "5", "--coefficient", "1:0.5", "--period-unit", "mile"], /--period-unit/],
+    [["nfe", "--period", "5", "--coefficient", "1:0.5", "--stated"], /--stated/],
+    [["nfe", "--period", "5", "--coefficient", "1:0.5", "--frob", "1"], /--frob/],
+    [["calc", "varshni", "--eg0", "1.519", "--alpha", "0.5405", "--beta", "204"], /--temperature is required/],
+    [["calc", "bowing", "--eg-a", "3.099", "--eg-b", "1.519", "--c0", "-0.127", "--x", "1.5"], /--x must be at most 1/],
+    [["calc", "kane", "--ep", "28.8", "--f", "-1.94", "--eg", "zero", "--delta", "0.341"], /--eg must be a number/],
+    [["calc", "vegard", "--a-a", "5.6611", "--a-b", "5.65325", "--x", "0.3", "extra"], /unexpected argument "extra"/],
+  ];
+  for (const [args, message] of bad) {
+    it(`exits 2 with one line naming the problem: ${args.join(" ")}`, async () => {
+      const run = await inProcess(...args);
+      expect(run.code).toBe(2);
+      expect(run.stdout).toBe("");
+      expect(run.stderr.trimEnd().split("\n")).toHaveLength(1);
+      expect(run.stderr).toMatch(message);
+    });
+  }
+});
