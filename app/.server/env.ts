@@ -18,6 +18,10 @@ const schema = z.object({
   BANDLEDGER_PUBLIC_URL: z.url().default("http://127.0.0.1:3000"),
   BANDLEDGER_MAILBOX: z.enum(["on", "off"]).optional(),
   BANDLEDGER_MAILBOX_DIR: z.string().optional(),
+  // 1 when one reverse proxy sits in front: the client address is then the last X-Forwarded-For entry.
+  TRUST_PROXY: z.enum(["0", "1"]).default("0"),
+  // API requests a token (or a signed-in user) may make per minute before answering 429.
+  BANDLEDGER_API_RATE_PER_MINUTE: z.coerce.number().int().min(1).default(600),
 });
 
 export type Env = z.infer<typeof schema> & { databaseUrl: string; sessionSecret: string; mailboxDir: string; mailboxEnabled: boolean };

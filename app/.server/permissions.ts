@@ -2,7 +2,9 @@ import { and, eq } from "drizzle-orm";
 import { data, redirect } from "react-router";
 import { db } from "./db/client";
 import { familyLeads, users, type Role } from "./db/schema";
-import { getSession } from "./session";
+import { pageAddress } from "./auth/return-to";
+import { env } from "./env";
+import { getSession, SESSION_MAX_AGE_SECONDS } from "./session";
 
 export type CurrentUser = {
   id: number;
@@ -29,13 +31,14 @@ export async function getOptionalUser(request: Request): Promise<CurrentUser | n
   const session = await getSession(request);
   const userId = session.get("userId");
   if (!userId) return null;
+  // The cookie's own expiry is the browser's promise; a replayed old cookie is refused here.
+  const signedInAt = session.get("signedInAt") ?? 0;
+  if (Date.now() - signedInAt > SESSION_MAX_AGE_SECONDS * 1000) return null;
   return loadUser(userId);
 }
 
 function signInUrl(request: Request): string {
-  const url = new URL(request.url);
-  const back = url.pathname + url.search;
-  return `/sign-in?returnTo=${encodeURIComponent(back)}`;
+  return `/sign-in?returnTo=${encodeURIComponent(pageAddress(request.url))}`;
 }
 
 export function forbidden(message = "Your role does not allow this."): never {
@@ -62,4 +65,27 @@ export async function requireLeadOf(request: Request, familyId: number): Promise
   const user = await requireRole(request, "lead");
   if (!isLeadOf(user, familyId)) forbidden("Only a lead of this material family may do this.");
   return user;
+}
+
+// Resource routes that change anything: React Router checks Origin only for UI actions, so these check it themselves.
+export function requireSameOrigin(request: Request): void {
+  const allowed = new Set([new URL(request.url).origin, new URL(env().BANDLEDGER_PUBLIC_URL).origin]);
+  let source = request.headers.get("origin");
+  if (!source || source === "null") {
+    source = null;
+    const referer = request.headers.get("referer");
+    if (referer) {
+      try {
+        source = new URL(referer).origin;
+      } catch {
+        source = null;
+      }
+    }
+  }
+  if (!source || !allowed.has(source)) {
+    throw Response.json(
+      { error: { code: "foreign_origin", message: "This change must come from a Bandledger page of this site.", field: null } },
+      { status: 403 },
+    );
+  }
 }

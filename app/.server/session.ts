@@ -1,7 +1,11 @@
 import { createCookieSessionStorage, redirect } from "react-router";
 import { env } from "./env";
 
-export type SessionData = { userId: number; signedInAt: number };
+// pendingSignIn binds the address a code was sent to and that code's digest to this browser (the _totp cookie is unsigned).
+export type PendingSignIn = { email: string; codeDigest: string; requestedAt: number };
+export type SessionData = { userId: number; signedInAt: number; pendingSignIn: PendingSignIn; returnTo: string };
+
+export const SESSION_MAX_AGE_SECONDS = 60 * 60 * 12;
 export type SessionFlash = { flash: { kind: "ok" | "error"; message: string } };
 
 let storage: ReturnType<typeof createCookieSessionStorage<SessionData, SessionFlash>> | undefined;
@@ -16,7 +20,7 @@ export function sessionStorage() {
         path: "/",
         secure: env().BANDLEDGER_PUBLIC_URL.startsWith("https://"),
         secrets: [env().sessionSecret],
-        maxAge: 60 * 60 * 12,
+        maxAge: SESSION_MAX_AGE_SECONDS,
       },
     });
   }

@@ -1,0 +1,72 @@
+import { and, count, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
+import { clientAddress } from "./auth/client-address";
+import { db } from "./db/client";
+import { auditLog, users } from "./db/schema";
+
+// Who acted: a signed-in user, an address that asked for a code (id null), or the system (null).
+export type AuditActor = { id: number | null; email: string | null } | null;
+export type AuditTarget = { type: string; id: string | number } | null;
+
+// Actions are "area.verb"; the admin page lists whatever has been written, so new areas need no registration.
+export async function audit(
+  actor: AuditActor,
+  action: string,
+  target: AuditTarget,
+  request: Request | null,
+  detail?: Record<string, unknown>,
+): Promise<void> {
+  await db().insert(auditLog).values({
+    actorId: actor?.id ?? null,
+    actorEmail: actor?.email ?? null,
+    action,
+    targetType: target?.type ?? null,
+    targetId: target ? String(target.id) : null,
+    ip: request ? clientAddress(request) : null,
+    detail: detail ?? null,
+  });
+}
+
+export type AuditFilter = { action?: string; actorId?: number; from?: Date; to?: Date; page: number; pageSize: number };
+
+export type AuditRow = {
+  id: number; at: Date; actorId: number | null; actorEmail: string | null; actorName: string | null;
+  action: string; targetType: string | null; targetId: string | null; ip: string | null; detail: Record<string, unknown> | null;
+};
+
+export async function listAudit(filter: AuditFilter): Promise<{ rows: AuditRow[]; total: number; page: number; pageCount: number }> {
+  const where: SQL[] = [];
+  if (filter.action) where.push(eq(auditLog.action, filter.action));
+  if (filter.actorId) where.push(eq(auditLog.actorId, filter.actorId));
+  if (filter.from) where.push(gte(auditLog.at, filter.from));
+  if (filter.to) where.push(lt(auditLog.at, filter.to));
+  const condition = where.length ? and(...where) : undefined;
+  const [{ n }] = await db().select({ n: count() }).from(auditLog).where(condition);
+  const total = Number(n);
+  const pageCount = Math.max(1, Math.ceil(total / filter.pageSize));
+  const page = Math.min(Math.max(1, filter.page), pageCount);
+  const rows = await db()
+    .select({
+      id: auditLog.id, at: auditLog.at, actorId: auditLog.actorId, actorEmail: auditLog.actorEmail, actorName: users.name,
+      action: auditLog.action, targetType: auditLog.targetType, targetId: auditLog.targetId, ip: auditLog.ip, detail: auditLog.detail,
+    })
+    .from(auditLog)
+    .leftJoin(users, eq(users.id, auditLog.actorId))
+    .where(condition)
+    .orderBy(desc(auditLog.at), desc(auditLog.id))
+    .limit(filter.pageSize)
+    .offset((page - 1) * filter.pageSize);
+  return { rows: rows.map((r) => ({ ...r, id: Number(r.id) })), total, page, pageCount };
+}
+
+export async function auditActions(): Promise<string[]> {
+  const rows = await db().selectDistinct({ action: auditLog.action }).from(auditLog).orderBy(auditLog.action);
+  return rows.map((r) => r.action);
+}
+
+export async function auditActors(): Promise<{ id: number; name: string; email: string }[]> {
+  return db()
+    .select({ id: users.id, name: users.name, email: users.email })
+    .from(users)
+    .where(sql`exists (select 1 from ${auditLog} where ${auditLog.actorId} = ${users.id})`)
+    .orderBy(users.name);
+}
