@@ -1,6 +1,9 @@
 import { eq, sql } from "drizzle-orm";
 import { closeDb, db, type Db } from "~/.server/db/client";
 import { familyLeads, materialFamilies, users } from "~/.server/db/schema";
+import { loadProposals } from "./proposals";
+import { loadRegistry } from "./registry";
+import { loadSets } from "./sets";
 import { FAMILIES, PEOPLE } from "./team";
 
 // Idempotent: every row is looked up by its natural key before it is written.
@@ -18,15 +21,22 @@ export async function loadTeam(d: Db) {
       await d.insert(familyLeads).values({ userId: u.id, familyId: familyId.get(key)! }).onDuplicateKeyUpdate({ set: { userId: sql`user_id` } });
     }
   }
-  const admin = process.env.BANDLEDGER_ADMIN_EMAIL;
-  if (admin) {
-    await d.insert(users).values({ email: admin.toLowerCase(), name: admin.split("@")[0], role: "admin", active: true })
-      .onDuplicateKeyUpdate({ set: { role: "admin", active: true } });
-  }
+  await ensureFirstAdmin(d);
+}
+
+// BANDLEDGER_ADMIN_EMAIL is made an active admin on every start, so a team can bootstrap without the demo.
+export async function ensureFirstAdmin(d: Db) {
+  const admin = process.env.BANDLEDGER_ADMIN_EMAIL?.trim().toLowerCase();
+  if (!admin) return;
+  await d.insert(users).values({ email: admin, name: admin.split("@")[0], role: "admin", active: true })
+    .onDuplicateKeyUpdate({ set: { role: "admin", active: true } });
 }
 
 export async function loadDemo(d: Db) {
   await loadTeam(d);
+  await loadRegistry(d);
+  await loadProposals(d);
+  await loadSets(d);
 }
 
 async function main() {
@@ -34,6 +44,7 @@ async function main() {
   const d = db();
   const [{ n }] = await d.select({ n: sql<number>`count(*)` }).from(users);
   if (ifEmpty && Number(n) > 0) {
+    await ensureFirstAdmin(d);
     console.error("bandledger: demo data already present, keeping it");
   } else {
     await loadDemo(d);

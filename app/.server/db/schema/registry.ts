@@ -78,10 +78,25 @@ export const records = mysqlTable("records", {
   version: int().notNull().default(1),
   createdAt: now(),
   updatedAt: now(),
+  // Copies kept by the registry services so the registry table filters, sorts and counts on this table alone:
+  // of the material (family, key) and quantity (sort order), and of the current revision (method, value, source).
+  familyId: int("family_id"),
+  sortMaterial: varchar("sort_material", { length: 40 }).notNull().default(""),
+  quantitySort: int("quantity_sort").notNull().default(0),
+  currentMethod: mysqlEnum("current_method", METHODS),
+  currentValueNumeric: decimal("current_value_numeric", { precision: 40, scale: 20 }),
+  currentSourceId: int("current_source_id"),
 }, (t) => [
   uniqueIndex("records_conditions").on(t.materialId, t.quantityId, t.conditionKey),
   index("records_quantity").on(t.quantityId),
   index("records_updated").on(t.updatedAt),
+  // The registry's orders: material, quantity, then valley (Γ, X, L), composition and temperature.
+  index("records_listing_order").on(t.status, t.sortMaterial, t.quantitySort, t.valley, t.composition, t.temperatureK),
+  index("records_family_order").on(t.familyId, t.status, t.sortMaterial, t.quantitySort, t.valley, t.composition, t.temperatureK),
+  index("records_quantity_value").on(t.quantityId, t.status, t.currentValueNumeric),
+  index("records_quantity_order").on(t.quantityId, t.status, t.sortMaterial, t.valley, t.composition, t.temperatureK),
+  index("records_temperature_order").on(t.status, t.temperatureK, t.sortMaterial, t.quantitySort, t.valley, t.composition),
+  index("records_source").on(t.currentSourceId),
 ]);
 
 export type PotentialCoefficient = { n: number; valueEv: string };

@@ -71,3 +71,13 @@ export const notices = mysqlTable("notices", {
   createdAt: now(),
   sentAt: datetime("sent_at", { fsp: 3 }),
 }, (t) => [index("notices_pending").on(t.userId, t.sentAt)]);
+
+// What a browser had typed when its session ran out, kept until its person signs in again (short-lived; the
+// browser holds only a signed cookie with the random key, whose SHA-256 is the id here).
+export const draftStashes = mysqlTable("draft_stashes", {
+  id: varchar({ length: 64 }).primaryKey(),
+  proposalId: int("proposal_id"),
+  payload: json().$type<Record<string, unknown>>().notNull(),
+  createdAt: now(),
+  expiresAt: datetime("expires_at", { fsp: 3 }).notNull(),
+}, (t) => [index("draft_stashes_expires").on(t.expiresAt)]);

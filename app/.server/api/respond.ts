@@ -1,0 +1,53 @@
+import { z } from "zod";
+import { isSetError } from "../sets/errors";
+import { apiError } from "../tokens";
+
+export { apiError };
+
+/** A JSON answer of the API; never cached, since it follows the live registry. */
+export function apiJson(body: unknown, init: { status?: number; headers?: HeadersInit } = {}): Response {
+  const headers = new Headers(init.headers);
+  if (!headers.has("Cache-Control")) headers.set("Cache-Control", "no-store");
+  return Response.json(body, { status: init.status ?? 200, headers });
+}
+
+/** Parses query parameters with a schema; a bad one is a 400 naming the parameter. */
+export function parseQuery<S extends z.ZodType>(schema: S, request: Request): z.infer<S> {
+  const params = Object.fromEntries(new URL(request.url).searchParams);
+  const parsed = schema.safeParse(params);
+  if (!parsed.success) throw badRequest(parsed.error);
+  return parsed.data;
+}
+
+/** Parses a JSON body: not JSON is a 400 "invalid_json", a wrong shape a 400 naming the field. */
+export async function parseJsonBody<S extends z.ZodType>(schema: S, request: Request): Promise<z.infer<S>> {
+  const type = request.headers.get("content-type") ?? "";
+  if (!/^application\/json\b/i.test(type)) throw apiError(400, "invalid_content_type", "Send the body as JSON with Content-Type: application/json.", null);
+  let body: unknown;
+  try {
+    body = await request.json();
+  } catch {
+    throw apiError(400, "invalid_json", "The body is not valid JSON.", null);
+  }
+  const parsed = schema.safeParse(body);
+  if (!parsed.success) throw badRequest(parsed.error);
+  return parsed.data;
+}
+
+function badRequest(error: z.ZodError): Response {
+  const issue = error.issues[0];
+  const field = issue.path.length ? issue.path.join(".") : null;
+  return apiError(400, "invalid_request", field ? `${field}: ${issue.message}` : issue.message, field);
+}
+
+/** Runs an API handler: thrown Responses pass through, service refusals become their JSON error, the rest a 500. */
+export async function runApi(handler: () => Promise<Response>): Promise<Response> {
+  try {
+    return await handler();
+  } catch (e) {
+    if (e instanceof Response) return e;
+    if (isSetError(e)) return apiError(e.status, e.code, e.message, e.field);
+    console.error(e);
+    return apiError(500, "internal_error", "The server hit an unexpected error; it has been logged.", null);
+  }
+}

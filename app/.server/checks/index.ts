@@ -1,0 +1,4 @@
+export * from "./inputs";
+export * from "./report";
+export * from "./tolerances";
+export * from "./nfe-form";

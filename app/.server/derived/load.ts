@@ -1,0 +1,84 @@
+import { and, asc, eq, ne } from "drizzle-orm";
+import { z } from "zod";
+import { parseExactDecimal } from "~/domain/exact-decimal";
+import { endMembersOf, materialByName, materialCheckValues } from "../checks/inputs";
+import { db } from "../db/client";
+import { materials, quantities, records } from "../db/schema";
+import type { Executor } from "../registry/executor";
+import { deriveMaterialValues, type DerivedInputs, type DerivedValuesData } from "./compute";
+
+export const DERIVED_DEFAULT_TEMPERATURE_K = 300;
+export const DERIVED_MAX_TEMPERATURE_K = 2000;
+
+export type DerivedForm = {
+  /** As typed, so the form shows what was asked for. */
+  values: { temperature: string; x: string; substrate: string };
+  errors: Partial<Record<"temperature" | "x" | "substrate", string>>;
+};
+
+const text = z.string().trim().max(40).catch("");
+const searchSchema = z.object({ temperature: text.default(""), x: text.default(""), substrate: text.default("") });
+
+function parseBounded(raw: string, min: number, max: number, message: string): { value: number | null; error?: string } {
+  if (raw === "") return { value: null };
+  const parsed = parseExactDecimal(raw);
+  if (!parsed.ok) return { value: null, error: parsed.message };
+  const value = parsed.value.decimal.toNumber();
+  if (value < min || value > max) return { value: null, error: message };
+  return { value };
+}
+
+/** The temperature, composition and substrate asked for in the material page's address (?temperature=&x=&substrate=). */
+export function parseDerivedSearch(params: URLSearchParams): { form: DerivedForm; temperatureK: number; composition: number | null; substrateKey: string | null } {
+  const raw = searchSchema.parse(Object.fromEntries(params));
+  const errors: DerivedForm["errors"] = {};
+  const t = parseBounded(raw.temperature, 0, DERIVED_MAX_TEMPERATURE_K, `Choose a temperature from 0 to ${DERIVED_MAX_TEMPERATURE_K} K.`);
+  if (t.error) errors.temperature = t.error;
+  const x = parseBounded(raw.x, 0, 1, "The composition x lies between 0 and 1.");
+  if (x.error) errors.x = x.error;
+  return {
+    form: { values: raw, errors },
+    temperatureK: t.value ?? DERIVED_DEFAULT_TEMPERATURE_K,
+    composition: x.value,
+    substrateKey: raw.substrate || null,
+  };
+}
+
+async function substrateCandidates(ex: Executor, exceptId: number): Promise<DerivedInputs["substrates"]> {
+  const rows = await ex
+    .selectDistinct({ id: materials.id, key: materials.key, name: materials.name, kind: materials.kind })
+    .from(materials)
+    .innerJoin(records, eq(records.materialId, materials.id))
+    .innerJoin(quantities, eq(quantities.id, records.quantityId))
+    .where(and(ne(materials.kind, "alloy"), ne(materials.id, exceptId), eq(quantities.key, "lattice_a"), eq(records.status, "active")))
+    .orderBy(asc(materials.key));
+  const out: DerivedInputs["substrates"][number][] = [];
+  for (const m of rows) out.push({ material: { key: m.key, name: m.name, kind: m.kind }, values: await materialCheckValues(ex, m.id) });
+  return out.filter((s) => s.values.some((v) => v.quantityKey === "lattice_a" && v.temperatureK !== null && Number(v.temperatureK) === 300));
+}
+
+export type DerivedValuesPage = { derived: DerivedValuesData; form: DerivedForm };
+
+/**
+ * The derived values of a material for its page, at the temperature (and composition, substrate) in the address;
+ * null for an unknown material.
+ */
+export async function loadDerivedValues(materialKey: string, params: URLSearchParams, ex: Executor = db()): Promise<DerivedValuesPage | null> {
+  const material = await materialByName(ex, materialKey);
+  if (!material || material.key !== materialKey) return null;
+  const request = parseDerivedSearch(params);
+  const [values, endMembers, substrates] = await Promise.all([
+    materialCheckValues(ex, material.id),
+    endMembersOf(ex, material),
+    material.kind === "alloy" ? substrateCandidates(ex, material.id) : Promise.resolve([]),
+  ]);
+  const derived = deriveMaterialValues(
+    {
+      material: { key: material.key, name: material.name, kind: material.kind, formula: material.formula, compositionVariable: material.compositionVariable },
+      values, endMembers: endMembers ?? null, substrates,
+    },
+    { temperatureK: request.temperatureK, composition: request.composition, substrateKey: request.substrateKey },
+  );
+  if (request.substrateKey && derived.substrateKey !== request.substrateKey) request.form.errors.substrate = "Choose one of the substrates listed.";
+  return { derived, form: request.form };
+}

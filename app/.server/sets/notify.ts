@@ -1,0 +1,48 @@
+import { env } from "../env";
+import { sendMail } from "../mail/send";
+import { layout } from "../mail/templates";
+import { compareSet, comparisonLines, type Comparison } from "./compare";
+import { requireRelease, requireSet, watchersOf } from "./queries";
+
+export type FreezeSummary = { headline: string; lines: string[] };
+
+/** "3 changed, 1 added, 0 removed against release 2", with one line per value. */
+export function freezeSummary(number: number, itemCount: number, comparison: Comparison | null): FreezeSummary {
+  if (!comparison) return { headline: `First release: ${itemCount} values pinned.`, lines: [] };
+  const { added, removed, changed, unchanged } = comparison;
+  return {
+    headline: `Against release ${comparison.from.release}: ${changed.length} changed, ${added.length} added, ${removed.length} removed, ${unchanged} unchanged.`,
+    lines: comparisonLines(comparison),
+  };
+}
+
+/** Mails every active watcher but the person who froze it: the new release, its hash and what changed since the previous one. */
+export async function notifyWatchersOfFreeze(slug: string, number: number, actorId: number): Promise<number> {
+  const set = await requireSet(slug);
+  const release = await requireRelease(set, number);
+  const watchers = (await watchersOf(set.id)).filter((w) => w.id !== actorId);
+  if (watchers.length === 0) return 0;
+  const comparison = number > 1 ? await compareSet(slug, number - 1, number) : null;
+  const summary = freezeSummary(number, release.itemCount, comparison);
+  const publicUrl = env().BANDLEDGER_PUBLIC_URL.replace(/\/$/, "");
+  const link = comparison ? `${publicUrl}/sets/${slug}/compare?from=${number - 1}&to=${number}` : `${publicUrl}/sets/${slug}/releases/${number}`;
+  for (const w of watchers) {
+    const mail = layout({
+      to: w.email,
+      subject: `${set.name}: release ${number} frozen`,
+      greeting: `Hello ${w.name},`,
+      blocks: [
+        { kind: "p", text: `${release.frozenBy} froze release ${number} of ${set.name} (${release.itemCount} values).` },
+        { kind: "p", text: `SHA-256 of the release: ${release.sha256}` },
+        { kind: "p", text: summary.headline },
+        ...summary.lines.slice(0, 50).map((line) => ({ kind: "p" as const, text: line })),
+        ...(summary.lines.length > 50 ? [{ kind: "p" as const, text: `… and ${summary.lines.length - 50} more on the comparison page.` }] : []),
+        { kind: "button", label: comparison ? "See the comparison" : "See the release", url: link },
+      ],
+      publicUrl,
+      reason: `You receive this because you watch the parameter set ${set.name}; unwatch it on its page.`,
+    });
+    await sendMail(mail);
+  }
+  return watchers.length;
+}

@@ -1,0 +1,109 @@
+import { createHash, randomBytes } from "node:crypto";
+import { existsSync } from "node:fs";
+import { mkdir, readFile, rename, rm, writeFile } from "node:fs/promises";
+import path from "node:path";
+import { decodeCsvBytes, formatBytes } from "~/domain/csv-proposals";
+import { env } from "./env";
+
+export const MAX_ATTACHMENT_BYTES = 10 * 1024 * 1024;
+
+export type StoredKind = "pdf" | "csv" | "text";
+export const CONTENT_TYPES: Record<StoredKind, string> = {
+  pdf: "application/pdf",
+  csv: "text/csv; charset=utf-8",
+  text: "text/plain; charset=utf-8",
+};
+
+export class StorageError extends Error {
+  constructor(readonly code: "empty" | "too_large" | "type", message: string) {
+    super(message);
+    this.name = "StorageError";
+  }
+}
+
+export type StoredFile = { sha256: string; sizeBytes: number; kind: StoredKind; contentType: string };
+
+const SHA256 = /^[0-9a-f]{64}$/;
+
+function filesDir(): string {
+  return path.join(env().BANDLEDGER_DATA_DIR, "files");
+}
+
+/** Where a file lives: files/<first two hex digits>/<sha256>, so no directory grows too large. */
+export function storedFilePath(sha256: string): string {
+  if (!SHA256.test(sha256)) throw new StorageError("type", "Not a SHA-256 digest.");
+  return path.join(filesDir(), sha256.slice(0, 2), sha256);
+}
+
+const TEXT_CONTROL = /[\u0000-\u0008\u000B\u000E-\u001F\u007F]/;
+
+/**
+ * What a file is by its content, never by its name or the browser's word: a PDF by its magic bytes "%PDF-",
+ * text by being UTF-8 without control characters (a CSV when its name says so).
+ */
+export function detectFileKind(bytes: Uint8Array, fileName: string): StoredKind | null {
+  if (bytes.length >= 5 && Buffer.from(bytes.subarray(0, 5)).toString("latin1") === "%PDF-") return "pdf";
+  const decoded = decodeCsvBytes(bytes, Number.POSITIVE_INFINITY);
+  if (!decoded.ok || TEXT_CONTROL.test(decoded.text)) return null;
+  return /\.(csv|tsv)$/i.test(fileName) ? "csv" : "text";
+}
+
+/**
+ * Keeps a file content-addressed under the data folder after checking its size and type. Storing the same bytes
+ * twice keeps one copy; a file appears under its name only once it is complete (written aside, then renamed).
+ */
+export async function storeFile(bytes: Uint8Array, options: { fileName: string; allowed: readonly StoredKind[]; maxBytes?: number }): Promise<StoredFile> {
+  const maxBytes = options.maxBytes ?? MAX_ATTACHMENT_BYTES;
+  if (bytes.length === 0) throw new StorageError("empty", "The file is empty.");
+  if (bytes.length > maxBytes) throw new StorageError("too_large", `The file is ${formatBytes(bytes.length)}; at most ${formatBytes(maxBytes)} is kept.`);
+  const kind = detectFileKind(bytes, options.fileName);
+  if (!kind || !options.allowed.includes(kind)) {
+    const wanted = options.allowed.map((k) => (k === "pdf" ? "a PDF" : k === "csv" ? "a CSV file in UTF-8" : "a UTF-8 text file")).join(" or ");
+    throw new StorageError("type", `“${options.fileName}” is not ${wanted} by its content.`);
+  }
+  const sha256 = createHash("sha256").update(bytes).digest("hex");
+  const target = storedFilePath(sha256);
+  if (!existsSync(target)) {
+    await mkdir(path.dirname(target), { recursive: true });
+    const temporary = `${target}.${randomBytes(6).toString("hex")}.part`;
+    try {
+      await writeFile(temporary, bytes, { flag: "wx", mode: 0o640 });
+      await rename(temporary, target);
+    } finally {
+      await rm(temporary, { force: true });
+    }
+  }
+  return { sha256, sizeBytes: bytes.length, kind, contentType: CONTENT_TYPES[kind] };
+}
+
+/** The bytes of a stored file, checked against its digest so a damaged file is never served as the original. */
+export async function readStoredFile(sha256: string): Promise<Buffer> {
+  const bytes = await readFile(storedFilePath(sha256));
+  if (createHash("sha256").update(bytes).digest("hex") !== sha256) throw new Error(`stored file ${sha256} does not match its digest`);
+  return bytes;
+}
+
+/**
+ * Reads a posted form, multipart or not, refusing a body over the limit before it is all in memory (React
+ * Router's request.formData() would read any size).
+ */
+export async function readLimitedFormData(request: Request, maxBytes: number): Promise<FormData> {
+  const declared = Number(request.headers.get("content-length") ?? "0");
+  if (declared > maxBytes) throw new StorageError("too_large", `The upload is ${formatBytes(declared)}; at most ${formatBytes(maxBytes)} is taken.`);
+  if (!request.body) return new FormData();
+  const chunks: Uint8Array[] = [];
+  let total = 0;
+  const reader = request.body.getReader();
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    total += value.length;
+    if (total > maxBytes) {
+      await reader.cancel();
+      throw new StorageError("too_large", `The upload is over ${formatBytes(maxBytes)}; at most ${formatBytes(maxBytes)} is taken.`);
+    }
+    chunks.push(value);
+  }
+  const body = Buffer.concat(chunks);
+  return new Response(body, { headers: { "content-type": request.headers.get("content-type") ?? "application/x-www-form-urlencoded" } }).formData();
+}

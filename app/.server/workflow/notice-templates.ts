@@ -1,0 +1,86 @@
+import { layout } from "../mail/templates";
+import type { OutgoingMail } from "../mail/send";
+
+/** What a notice says, kept in the notices table whether it is mailed at once or in the next digest. */
+export type NoticeContent = { kind: string; subject: string; bodyText: string; link: string };
+
+/** "GaAs · band gap (Γ, 300 K): 1.4225 eV → 1.4230 eV", the line every notice of a proposal starts from. */
+export type ProposalSummary = { id: number; title: string; change: string };
+
+const clip = (s: string, n: number) => (s.length > n ? `${s.slice(0, n - 1)}…` : s);
+
+export function submittedNotice(p: ProposalSummary, authorName: string, link: string): NoticeContent {
+  return {
+    kind: "proposal.submitted",
+    subject: clip(`Review requested: ${p.title}`, 200),
+    bodyText: `${authorName} proposes a change in a family you lead.\n${p.title}\n${p.change}\nIt needs a lead other than its author to approve or reject it.`,
+    link,
+  };
+}
+
+export function batchNotice(count: number, familyName: string, authorName: string, fileName: string, link: string): NoticeContent {
+  return {
+    kind: "proposal.batch",
+    subject: clip(`Review requested: ${count} proposal${count === 1 ? "" : "s"} for ${familyName} from ${fileName}`, 200),
+    bodyText: `${authorName} uploaded ${fileName}: ${count} proposal${count === 1 ? "" : "s"} for materials of ${familyName}, a family you lead, wait for review.`,
+    link,
+  };
+}
+
+export function decisionNotice(p: ProposalSummary, decision: "approved" | "rejected", deciderName: string, reason: string | null, link: string): NoticeContent {
+  const lines = [
+    `${deciderName} ${decision} your proposal.`,
+    p.title,
+    p.change,
+    reason ? `${decision === "rejected" ? "Reason" : "Note"}: ${reason}` : null,
+    decision === "approved" ? "The new value is now the current one in the registry; the old one stays in the record's history." : null,
+  ].filter((l): l is string => l !== null);
+  return { kind: `proposal.${decision}`, subject: clip(`${decision === "approved" ? "Approved" : "Rejected"}: ${p.title}`, 200), bodyText: lines.join("\n"), link };
+}
+
+export function commentNotice(p: ProposalSummary, commenterName: string, body: string, link: string): NoticeContent {
+  return {
+    kind: "proposal.comment",
+    subject: clip(`${commenterName} commented: ${p.title}`, 200),
+    bodyText: `${commenterName} wrote on the proposal ${p.title}:\n“${clip(body, 1500)}”`,
+    link,
+  };
+}
+
+type Recipient = { email: string; name: string };
+
+const FOOTER_REASON = "You receive this because you take part in a proposal on Bandledger. Choose immediate notices or a daily digest on your account page.";
+
+/** One notice as one message: its lines as paragraphs and a button to the proposal. */
+export function noticeMail(to: Recipient, notice: Pick<NoticeContent, "subject" | "bodyText" | "link">, publicUrl: string): OutgoingMail {
+  return layout({
+    to: to.email,
+    subject: notice.subject,
+    greeting: `Hello ${to.name},`,
+    blocks: [
+      ...notice.bodyText.split("\n").map((text) => ({ kind: "p" as const, text })),
+      { kind: "button", label: "Open the proposal", url: notice.link },
+    ],
+    publicUrl,
+    reason: FOOTER_REASON,
+  });
+}
+
+/** The daily digest: every waiting notice of one person, oldest first, each with its link. */
+export function digestMail(to: Recipient, notices: Pick<NoticeContent, "subject" | "bodyText" | "link">[], publicUrl: string): OutgoingMail {
+  return layout({
+    to: to.email,
+    subject: `Bandledger digest: ${notices.length} notice${notices.length === 1 ? "" : "s"} about proposals`,
+    greeting: `Hello ${to.name},`,
+    blocks: [
+      { kind: "p", text: `Since your last digest: ${notices.length} notice${notices.length === 1 ? "" : "s"}.` },
+      ...notices.flatMap((n) => [
+        { kind: "p" as const, text: n.subject },
+        ...n.bodyText.split("\n").map((text) => ({ kind: "p" as const, text })),
+        { kind: "button" as const, label: "Open", url: n.link },
+      ]),
+    ],
+    publicUrl,
+    reason: FOOTER_REASON,
+  });
+}

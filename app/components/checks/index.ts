@@ -1,0 +1,5 @@
+export { CheckReportView } from "./check-report-view";
+export { LiveCheck, useLiveCheck, LIVE_CHECK_URL } from "./live-check";
+export { NfePlot, type NfePlotInput } from "./nfe-plot";
+export { VerdictBadge } from "./verdict-badge";
+export { recordHref } from "./format";

@@ -1,0 +1,3 @@
+export { AlloyPlot } from "./alloy-plot";
+export { DerivedValues } from "./derived-values";
+export { TemperaturePlot } from "./temperature-plot";

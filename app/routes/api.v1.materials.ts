@@ -1,0 +1,11 @@
+import type { Route } from "./+types/api.v1.materials";
+import { materialList } from "~/.server/api/catalogue";
+import { requireApiCaller } from "~/.server/api/guard";
+import { apiJson, runApi } from "~/.server/api/respond";
+
+export async function loader({ request }: Route.LoaderArgs) {
+  return runApi(async () => {
+    await requireApiCaller(request);
+    return apiJson(await materialList());
+  });
+}

@@ -1,0 +1,35 @@
+import { data } from "react-router";
+import { z } from "zod";
+import type { Route } from "./+types/materials.$key";
+import { db } from "~/.server/db/client";
+import { loadDerivedValues } from "~/.server/derived";
+import { requireUser } from "~/.server/permissions";
+import { loadMaterialPage } from "~/.server/registry/queries";
+import { DerivedValues } from "~/components/derived";
+import { MaterialOverview } from "~/components/registry/material-overview";
+import { compareSchema } from "~/domain/registry-schemas";
+
+export const meta: Route.MetaFunction = ({ data: d }) => [{ title: d ? `${d.material.name} · Bandledger` : "Material · Bandledger" }];
+
+const paramsSchema = z.object({ key: z.string().min(1).max(64) });
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { key } = paramsSchema.parse(params);
+  const compare = compareSchema.parse(Object.fromEntries(new URL(request.url).searchParams));
+  await requireUser(request);
+  const page = await loadMaterialPage(db(), key);
+  if (!page) throw data({ message: `No material is filed under “${key}”.` }, { status: 404 });
+  const record = compare.cmp ? page.records.find((r) => r.id === compare.cmp) : undefined;
+  const valid = record && compare.from && compare.to && record.revisions.some((r) => r.id === compare.from) && record.revisions.some((r) => r.id === compare.to);
+  const derived = await loadDerivedValues(page.material.key, new URL(request.url).searchParams);
+  return { ...page, compare: valid ? { recordId: record.id, from: compare.from!, to: compare.to! } : null, derived };
+}
+
+export default function MaterialPage({ loaderData, params }: Route.ComponentProps) {
+  return (
+    <div className="space-y-6">
+      <MaterialOverview material={loaderData.material} records={loaderData.records} compare={loaderData.compare} action={`/materials/${encodeURIComponent(params.key)}`} />
+      {loaderData.derived ? <DerivedValues derived={loaderData.derived.derived} form={loaderData.derived.form} /> : null}
+    </div>
+  );
+}

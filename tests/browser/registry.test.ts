@@ -1,0 +1,140 @@
+import mysql from "mysql2/promise";
+import type { BrowserContext, Page } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
+import { artifactPath, launchBrowser } from "../support/browser";
+import { signInAs } from "../support/session";
+
+// The demo registry (seed-data/registry.ts): GaAs Eg(Γ, 300 K) = 1.4225 eV from the Varshni parameters of
+// [V01] (from memory), superseding the handbook value 1.424 eV of [SzeNg] (from memory).
+
+let browser: BrowserContext;
+let readerId: number;
+const appUrl = () => inject("appUrl");
+
+beforeAll(async () => {
+  const connection = await mysql.createConnection({ uri: inject("e2eDatabaseUrl") });
+  const [rows] = await connection.query("SELECT id FROM users WHERE email = 'priya.raman@kestrel-devices.test'");
+  readerId = (rows as { id: number }[])[0].id;
+  await connection.end();
+  browser = await launchBrowser();
+  await signInAs(browser, appUrl(), readerId);
+});
+afterAll(async () => browser?.close());
+
+async function rowTexts(page: Page): Promise<string[]> {
+  return page.locator("table tbody tr").allInnerTexts();
+}
+
+describe("the registry in Chromium, as a reader", () => {
+  it("filters to the GaAs band gaps and sorts them by value, all in the address", async () => {
+    const page = await browser.newPage();
+    await page.goto(`${appUrl()}/registry`);
+    const search = page.getByRole("search", { name: "Filter the registry" });
+    await search.getByLabel("Family").selectOption("arsenides");
+    await search.getByLabel("Material").selectOption("GaAs");
+    await search.getByLabel("Quantity").selectOption("eg");
+    await search.getByRole("button", { name: "Apply" }).click();
+    await page.waitForURL(/material=GaAs/);
+    await expect.poll(() => rowTexts(page)).toSatisfy((rows: string[]) => rows.length > 0 && rows.every((r) => r.startsWith("GaAs")));
+    const url = new URL(page.url());
+    expect(Object.fromEntries(url.searchParams)).toMatchObject({ family: "arsenides", material: "GaAs", quantity: "eg" });
+    const rows = await rowTexts(page);
+    expect(rows.length).toBeGreaterThan(3);
+    expect(rows.every((r) => r.startsWith("GaAs"))).toBe(true);
+    const gamma300 = rows.find((r) => r.includes("300 K") && r.includes("Γ"));
+    expect(gamma300).toMatch(/1\.4225\s+eV/);
+    expect(gamma300).toMatch(/Vurgaftman et al\. 2001/);
+    await page.screenshot({ path: artifactPath("registry-filtered.png"), fullPage: true });
+
+    await page.getByRole("link", { name: /^Sort by value/ }).click();
+    await page.waitForURL(/sort=value/);
+    await page.getByRole("link", { name: /^Sort by value, now ascending/ }).waitFor();
+    const values = (await page.locator("table tbody tr td:nth-child(3)").allInnerTexts()).map((t) => t.split(/\s/)[0]);
+    expect(values.length).toBe(rows.length);
+    for (let i = 1; i < values.length; i++) expect(Number(values[i])).toBeGreaterThanOrEqual(Number(values[i - 1]));
+    expect(await page.locator("th[aria-sort]").getAttribute("aria-sort")).toBe("ascending");
+
+    const shared = await browser.newPage();
+    await shared.goto(page.url());
+    expect(await rowTexts(shared)).toEqual(await rowTexts(page));
+    await shared.close();
+    await page.close();
+  });
+
+  it("searches by source with the keyboard alone and shows an empty state when nothing matches", async () => {
+    const page = await browser.newPage();
+    await page.goto(`${appUrl()}/registry`);
+    await page.getByLabel("Text").focus();
+    await page.keyboard.type("Sze");
+    await page.keyboard.press("Enter");
+    await page.waitForURL(/q=Sze/);
+    await expect.poll(() => rowTexts(page)).toSatisfy((rows: string[]) => rows.length > 0 && rows.every((r) => r.includes("Sze & Ng 2007")));
+    await page.goto(`${appUrl()}/registry?q=no-such-thing-anywhere`);
+    await expect(page.getByRole("heading", { name: "No record matches these filters" }).isVisible()).resolves.toBe(true);
+    await page.close();
+  });
+
+  it("opens GaAs, shows the caution and compares the handbook revision with the current one side by side", async () => {
+    const page = await browser.newPage();
+    await page.goto(`${appUrl()}/registry?material=GaAs&quantity=eg`);
+    await page.locator("table tbody tr", { hasText: "300 K" }).filter({ hasText: "Γ" }).getByRole("link", { name: "GaAs" }).click();
+    await page.waitForURL(/\/materials\/GaAs/);
+    await page.getByRole("heading", { level: 1, name: /Gallium arsenide/ }).waitFor();
+    await expect(page.getByRole("note").innerText()).resolves.toMatch(/confirm them against the team's own measurements/);
+
+    await page.screenshot({ path: artifactPath("material-top.png") });
+    const item = page.locator("li[data-record]", { hasText: "1.4225" }).filter({ hasText: "300 K" });
+    await expect(item.count()).resolves.toBe(1);
+    await item.locator("summary").click();
+    await item.getByLabel("Compare from revision 1").check();
+    await item.getByLabel("Compare to revision 3").check();
+    await item.getByRole("button", { name: "Compare the two selected revisions" }).click();
+    await page.waitForURL((u) => ["cmp", "from", "to"].every((k) => u.searchParams.has(k)));
+
+    const diff = page.getByTestId("revision-diff");
+    await expect(diff.isVisible()).resolves.toBe(true);
+    await expect(diff.locator("caption").innerText()).resolves.toMatch(/Revision 1 compared with revision 3/);
+    const value = diff.locator("tr", { has: page.locator("th", { hasText: /^Value/ }) });
+    await expect(value.getAttribute("data-changed")).resolves.toBe("true");
+    await expect(value.innerText()).resolves.toMatch(/1\.424 eV[\s\S]*1\.4225 eV/);
+    await expect(diff.locator("tr", { has: page.locator("th", { hasText: /^Potential coefficients/ }) }).innerText()).resolves.toMatch(/U1 = 0\.71125 eV.*period a = 5\.65325 Å/);
+    await expect(diff.locator("tr", { has: page.locator("th", { hasText: /^Source/ }) }).innerText()).resolves.toMatch(/Sze & Ng 2007[\s\S]*Vurgaftman et al\. 2001/);
+    await item.screenshot({ path: artifactPath("material-compare-record.png") });
+    await page.screenshot({ path: artifactPath("material-compare.png"), fullPage: true });
+    await page.close();
+  });
+
+  it("shows a record's full history with its states, and our 404 for an unknown record", async () => {
+    const page = await browser.newPage();
+    await page.goto(`${appUrl()}/registry?material=GaAs&quantity=lattice_a&status=all`);
+    await page.locator("table tbody tr", { hasText: "295 K" }).getByRole("link", { name: "retired" }).click();
+    await page.waitForURL(/\/records\/\d+$/);
+    await page.getByRole("heading", { name: "History, newest first" }).waitFor();
+    const history = await page.locator("section[id^=record-] tbody tr").allInnerTexts();
+    expect(history[0]).toMatch(/retirement[\s\S]*retired/);
+    expect(history[1]).toMatch(/5\.6533\s+Å[\s\S]*superseded/);
+    await page.screenshot({ path: artifactPath("record-retired.png"), fullPage: true });
+    const missing = await page.goto(`${appUrl()}/records/999999`);
+    expect(missing?.status()).toBe(404);
+    await expect(page.getByRole("heading", { name: "Nothing is filed under this address" }).isVisible()).resolves.toBe(true);
+    await page.close();
+  });
+
+  it("lists sources with the values that cite them", async () => {
+    const page = await browser.newPage();
+    await page.goto(`${appUrl()}/sources`);
+    const report = page.locator("li", { has: page.getByRole("link", { name: "KD-EPI-2026-014" }) });
+    await expect(report.innerText()).resolves.toMatch(/AlGaAs[\s\S]*1\.838\s+eV/);
+    await page.screenshot({ path: artifactPath("sources.png"), fullPage: true });
+    await page.close();
+  });
+
+  it("sends an anonymous visitor to sign in", async () => {
+    const anonymous = await launchBrowser();
+    const page = await anonymous.newPage();
+    await page.goto(`${appUrl()}/registry?material=GaAs`);
+    expect(new URL(page.url()).pathname).toBe("/sign-in");
+    expect(new URL(page.url()).searchParams.get("returnTo")).toBe("/registry?material=GaAs");
+    await anonymous.close();
+  });
+});

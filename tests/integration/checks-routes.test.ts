@@ -1,0 +1,111 @@
+import { mkdtempSync } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { eq } from "drizzle-orm";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { auditLog, quantities, users } from "~/.server/db/schema";
+import { startSink, type Sink } from "~/.server/mail/sink";
+import type { CheckReportResponse } from "~/domain/check-report";
+import { loadDemo } from "../../seed-data/load";
+import { startAppServer, type AppServer } from "../support/app-server";
+import { freshDatabase, type TestDatabase } from "../support/db";
+import { HttpClient } from "../support/route-access";
+
+// Against the production build over the demo registry: [V01] GaAs values (from memory), [Kane57], [Var67];
+// [Kittel] ch. 7 for the two-band gap 2|U_1|.
+
+let t: TestDatabase;
+let sink: Sink;
+let server: AppServer;
+const ids = new Map<string, number>();
+
+beforeAll(async () => {
+  t = await freshDatabase("checksroutes");
+  await loadDemo(t.db);
+  for (const u of await t.db.select().from(users)) ids.set(u.email.split("@")[0], u.id);
+  const mailboxDir = mkdtempSync(path.join(os.tmpdir(), "bl-checks-mail-"));
+  sink = await startSink({ port: 0, dir: mailboxDir });
+  server = await startAppServer({ databaseUrl: t.url, smtpPort: sink.port, mailboxDir });
+});
+afterAll(async () => {
+  await server?.stop();
+  await sink?.close();
+  await t?.drop();
+});
+
+const as = (person: string) => HttpClient.signedIn(server.url, ids.get(person)!);
+
+describe("/checks/report", () => {
+  it("answers a GET with the proposal's check report as JSON (GaAs m*e 0.067 m0 passes Kane)", async () => {
+    const client = await as("priya.raman");
+    const response = await client.get("/checks/report?kind=new_record&material=GaAs&quantity=me&valley=G&value=0.067&unit=m0");
+    expect(response.status).toBe(200);
+    expect(response.headers.get("content-type")).toMatch(/application\/json/);
+    const body = (await response.json()) as CheckReportResponse;
+    expect(body.report?.results.find((r) => r.kind === "kane")).toMatchObject({ status: "pass" });
+    expect(body.report?.origin).toBe("proposal");
+  });
+
+  it("takes the proposal form's fields as a POST from this site, and JSON too", async () => {
+    const client = await as("tomas.okafor");
+    const form = await client.post("/checks/report", {
+      kind: "new_record", material: "GaAs", quantity: "eg", temperatureMode: "stated", temperatureK: "310", valley: "G", value: "0.1", unit: "eV",
+      "potentialCoefficients.0.n": "1", "potentialCoefficients.0.valueEv": "0.1", periodAngstrom: "5.65325",
+    });
+    expect(form.status).toBe(200);
+    const nfe = ((await form.json()) as CheckReportResponse).report?.results.find((r) => r.kind === "nfe");
+    expect(nfe?.status).toBe("fail");
+    const json = await client.request("/checks/report", {
+      method: "POST",
+      headers: { "content-type": "application/json" },
+      origin: server.url,
+    });
+    expect(json.status).toBe(200);
+    expect(((await json.json()) as CheckReportResponse).report).toBeNull();
+  });
+
+  it("refuses a POST from another site, and sends a visitor without a session to sign in", async () => {
+    const client = await as("tomas.okafor");
+    const foreign = await client.post("/checks/report", { kind: "new_record", material: "GaAs" }, { origin: "https://elsewhere.example" });
+    expect(foreign.status).toBe(403);
+    expect(await foreign.json()).toMatchObject({ error: { code: "foreign_origin" } });
+    const anonymous = await new HttpClient(server.url).get("/checks/report?material=GaAs");
+    expect(anonymous.status).toBe(302);
+    expect(anonymous.headers.get("location")).toMatch(/^\/sign-in\?returnTo=/);
+  });
+});
+
+describe("/checks/nfe and the record page without JavaScript", () => {
+  it("renders the verdict of the query in the page (U_1 = 0.1 eV, stated 0.2 eV passes)", async () => {
+    const html = await (await (await as("priya.raman")).get("/checks/nfe?period=5.65325&unit=angstrom&n=1&u=0.1&stated=0.2")).text();
+    expect(html).toContain('data-nfe-result="pass"');
+    expect(html).toContain("central equation (11 plane waves)");
+  });
+
+  it("keeps a wrong input in its field with the message beside it", async () => {
+    const response = await (await as("priya.raman")).get("/checks/nfe?period=abc&n=1&u=0.1");
+    const html = await response.text();
+    expect(html).toMatch(/<input[^>]*id="nfe-period"[^>]*aria-invalid="true"/);
+    expect(html).toMatch(/value="abc"/);
+    expect(html).toContain("“abc” is not a decimal number.");
+  });
+});
+
+describe("/admin/tolerances", () => {
+  it("keeps a wrong tolerance at its field, saves a right one with an audit entry, and is for admins only", async () => {
+    const admin = await as("ines.carvalho");
+    const page = await (await admin.get("/admin/tolerances")).text();
+    expect(page).toContain("Check tolerances");
+    const refused = await admin.post("/admin/tolerances", { quantity: "me", tolerance: "-0.02" });
+    expect(refused.status).toBe(400);
+    expect(await refused.text()).toContain("A tolerance is larger than zero.");
+    const saved = await admin.post("/admin/tolerances", { quantity: "me", tolerance: "0.015" });
+    expect(saved.status).toBe(302);
+    const [me] = await t.db.select().from(quantities).where(eq(quantities.key, "me"));
+    expect(me.checkTolerance).toBe("0.015");
+    const [entry] = await t.db.select().from(auditLog).where(eq(auditLog.action, "checks.tolerance_set"));
+    expect(entry).toMatchObject({ actorId: ids.get("ines.carvalho"), targetId: "me", detail: { from: null, to: "0.015" } });
+    const lead = await (await as("ravi.menon")).post("/admin/tolerances", { quantity: "eg", tolerance: "0.5" });
+    expect(lead.status).toBe(403);
+  });
+});
