@@ -15,6 +15,7 @@ const SECTIONS = [
   { to: "/admin/families", label: "Material families" },
   { to: "/admin/leads", label: "Lead assignments" },
   { to: "/admin/audit", label: "Audit log" },
+  { to: "/admin/tolerances", label: "Check tolerances" },
 ];
 
 export default function AdminLayout() {
