@@ -113,6 +113,18 @@ describe("submitting a proposal", () => {
     await withdrawProposal(who.tomas, id);
   });
 
+  it("records the consistency-check status at submission for the review queue", async () => {
+    // Varshni [Var67] with the [V01] GaAs fit gives 1.4224821 eV at 300 K: 1.42248 passes, 1.30 fails by far.
+    const good = await submitted(who.tomas, gapRevision(recordIds.gaasGap300, "1.42248"));
+    const bad = await submitted(who.tomas, gapRevision(recordIds.gaasGap300, "1.30"));
+    const rows = await t.db.select({ id: proposals.id, checkStatus: proposals.checkStatus }).from(proposals).where(inArray(proposals.id, [good, bad]));
+    const status = new Map(rows.map((r) => [r.id, r.checkStatus]));
+    expect(status.get(good)).toBe("pass");
+    expect(status.get(bad)).toBe("fail");
+    await withdrawProposal(who.tomas, good);
+    await withdrawProposal(who.tomas, bad);
+  });
+
   it("saves what was typed before it refuses a proposal with errors, with a message at each wrong field", async () => {
     const typed = gapRevision(recordIds.gaasGap300, "1,4225", { unit: "eV", locator: "", source: { ...V01, doi: "doi 10.1063" } });
     const id = await createDraft(who.tomas, { kind: "revision", recordId: String(recordIds.gaasGap300) });

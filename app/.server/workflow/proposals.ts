@@ -1,6 +1,7 @@
 import { and, eq, inArray, sql } from "drizzle-orm";
 import { materialOf, quantityOf, readProposalPayload, validateProposal, type ProposalKind, type ProposalPayload } from "~/domain/proposal-schemas";
 import { audit } from "../audit";
+import { proposalCheckStatus } from "../checks/report";
 import { db } from "../db/client";
 import { familyLeads, materials, proposalComments, proposals, quantities, records, users } from "../db/schema";
 import { hasRole, type CurrentUser } from "../permissions";
@@ -164,6 +165,8 @@ export async function submitProposal(actor: Actor, id: number, raw: unknown, req
   if (!facts) throw new WorkflowError("not_found", "There is no such proposal.");
   await serverChecks(db(), facts, payload);
   const prepared = check.proposal.prepared;
+  // The queue shows this at a glance; the review page recomputes the full report from current values.
+  const checkStatus = await proposalCheckStatus(payload);
   const noticeIds = await db().transaction(async (tx) => {
     const result = await tx
       .update(proposals)
@@ -173,6 +176,7 @@ export async function submitProposal(actor: Actor, id: number, raw: unknown, req
         version: sql`${proposals.version} + 1`,
         proposedValue: prepared?.value ?? null,
         proposedUnit: prepared ? check.proposal.quantity.canonicalUnit : null,
+        checkStatus,
         materialId: check.proposal.material.id,
         quantityId: facts.quantity?.id ?? facts.row.quantityId,
         updatedAt: sql`NOW(3)`,
