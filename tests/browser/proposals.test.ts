@@ -106,6 +106,7 @@ describe("a change from proposal to the registry, in Chromium", () => {
     await review.getByText(/^Approved: record \d+ now holds the new value/).waitFor();
     await shoot(review, "proposal-approved.png");
 
+    expect(await d.select({ id: proposals.id }).from(proposals).where(and(eq(proposals.authorId, ids.tomas), eq(proposals.recordId, recordId)))).toHaveLength(1);
     const back = await readLastMail(inject("mailboxDir"), "tomas.okafor@kestrel-devices.test", { after: decided });
     expect(back.subject).toBe("Approved: AlAs · Band gap (Γ, 300 K)");
 
@@ -119,6 +120,9 @@ describe("a change from proposal to the registry, in Chromium", () => {
     const [rec] = await d.select({ current: records.currentRevisionId }).from(records).where(eq(records.id, recordId));
     const [current] = await d.select({ value: revisions.value }).from(revisions).where(eq(revisions.id, rec.current!));
     expect(current.value).toBe("3.00304");
+    await page.goto(`${appUrl}/proposals`);
+    expect(await page.locator("main").innerText()).toContain("AlAs · Band gap (Γ, 300 K)");
+    await shoot(page, "proposals-list.png");
   });
 
   it("keeps a form posted after the session ended, and puts it back after sign-in", async () => {

@@ -121,7 +121,7 @@ export function CsvUpload({ catalogue, maxBytes, maxRows, serverResult, serverMe
         {progress ? (
           <div role="status" aria-live="polite" data-testid="csv-progress">
             <div className="h-2 w-full max-w-md overflow-hidden rounded-full bg-rule" role="progressbar" aria-label="Rows checked" aria-valuemin={0} aria-valuemax={progress.total} aria-valuenow={progress.done}>
-              <div className="h-full rounded-full bg-copper transition-[width]" style={{ width: `${Math.round((100 * progress.done) / Math.max(1, progress.total))}%` }} />
+              <div className="h-full rounded-full bg-copper" style={{ width: `${Math.round((100 * progress.done) / Math.max(1, progress.total))}%` }} />
             </div>
             <p className="text-xs text-muted">Checked {progress.done.toLocaleString("en-GB")} of {progress.total.toLocaleString("en-GB")} rows…</p>
           </div>

@@ -1,5 +1,5 @@
 import { useEffect, useMemo, useRef, useState } from "react";
-import { Form, useFetcher, useNavigation } from "react-router";
+import { Form, useFetcher, useNavigation, useSubmit } from "react-router";
 import { FieldError, invalidProps } from "~/components/field-error";
 import {
   payloadToFormData, SOURCE_KIND_KEYS, SOURCE_KIND_LABELS, validateProposal, type ProposalCatalogue, type ProposalFieldErrors, type ProposalKind,
@@ -101,12 +101,29 @@ export function ProposalForm(props: {
     // The fetcher object changes with every state; only a change of what was typed starts a save.
   }, [payload]);
 
-  // A submission saves what was typed itself; a save still waiting would only race it.
-  const cancelPendingSave = () => {
+  // A submission saves what was typed itself; a save still waiting would only race it. A submission while
+  // the first save is on its way (the draft has no id yet) waits for that id, so one draft is made, not two.
+  const formRef = useRef<HTMLFormElement>(null);
+  const submit = useSubmit();
+  const [queuedIntent, setQueuedIntent] = useState<string | null>(null);
+  const onSubmit = (event: React.FormEvent<HTMLFormElement>) => {
     if (pendingSave.current) clearTimeout(pendingSave.current);
     pendingSave.current = null;
     dirty.current = false;
+    if (!idRef.current && fetcher.state !== "idle") {
+      event.preventDefault();
+      setQueuedIntent(((event.nativeEvent as SubmitEvent).submitter as HTMLButtonElement | null)?.value ?? "save");
+    }
   };
+  useEffect(() => {
+    if (!queuedIntent || fetcher.state !== "idle" || !formRef.current) return;
+    const form = new FormData(formRef.current);
+    form.set("intent", queuedIntent);
+    const id = fetcher.data?.proposalId ?? idRef.current;
+    if (id) form.set("proposalId", String(id));
+    setQueuedIntent(null);
+    submit(form, { method: "post", action });
+  }, [queuedIntent, fetcher.state]);
 
   const check = useMemo(() => validateProposal(payload, catalogue), [payload, catalogue]);
   const clientErrors: ProposalFieldErrors = check.ok ? {} : check.errors;
@@ -133,7 +150,7 @@ export function ProposalForm(props: {
   const conversion = quantity && payload.value.trim() ? convertToCanonical(payload.value, payload.unit, quantity.acceptedUnits) : null;
   const coefficientRows = [...payload.potentialCoefficients, { n: "", valueEv: "" }];
   const saving = fetcher.state !== "idle";
-  const submitting = navigation.state === "submitting";
+  const submitting = navigation.state === "submitting" || queuedIntent !== null;
 
   const text = (path: string, label: string, options: { hint?: string; className?: string; inputMode?: "decimal" | "text"; placeholder?: string } = {}) => {
     const id = `f-${path.replace(/\./g, "-")}`;
@@ -184,7 +201,7 @@ export function ProposalForm(props: {
   };
 
   return (
-    <Form method="post" action={action} className="space-y-6" noValidate aria-label="Proposal" onSubmit={cancelPendingSave}>
+    <Form method="post" action={action} className="space-y-6" noValidate aria-label="Proposal" onSubmit={onSubmit} ref={formRef}>
       {proposalId ? <input type="hidden" name="proposalId" value={proposalId} /> : null}
       <input type="hidden" name="kind" value={kind} />
 
