@@ -2,7 +2,7 @@ import { data, Link } from "react-router";
 import type { Route } from "./+types/records.$id";
 import { db } from "~/.server/db/client";
 import { checkReportForRecord } from "~/.server/checks";
-import { requireUser } from "~/.server/permissions";
+import { hasRole, requireUser } from "~/.server/permissions";
 import { loadRecord } from "~/.server/registry/queries";
 import { CheckReportView } from "~/components/checks";
 import { conditionsLabel, StateBadge, ValueWithUnit } from "~/components/registry/format";
@@ -18,16 +18,17 @@ export const meta: Route.MetaFunction = ({ data: d }) => [
 export async function loader({ request, params }: Route.LoaderArgs) {
   const id = positiveId.safeParse(params.id);
   const compare = compareSchema.parse(Object.fromEntries(new URL(request.url).searchParams));
-  await requireUser(request);
+  const user = await requireUser(request);
   const page = id.success ? await loadRecord(db(), id.data) : null;
   if (!page) throw data({ message: `There is no record ${params.id}.` }, { status: 404 });
   const has = (rev?: number) => rev !== undefined && page.record.revisions.some((r) => r.id === rev);
   const checks = await checkReportForRecord(page.record.id);
-  return { ...page, selection: has(compare.from) && has(compare.to) ? { from: compare.from!, to: compare.to! } : null, checks };
+  const canPropose = hasRole(user, "contributor") && page.record.status !== "retired";
+  return { ...page, selection: has(compare.from) && has(compare.to) ? { from: compare.from!, to: compare.to! } : null, checks, canPropose };
 }
 
 export default function RecordPage({ loaderData }: Route.ComponentProps) {
-  const { material, record, selection, checks } = loaderData;
+  const { material, record, selection, checks, canPropose } = loaderData;
   const q = record.quantity;
   const head = record.revisions[0];
   const current = record.revisions.find((r) => r.state === "current");
@@ -46,6 +47,12 @@ export default function RecordPage({ loaderData }: Route.ComponentProps) {
           <StateBadge state={record.status === "retired" ? "retired" : "current"} />
         </h1>
         <p className="mt-1 text-sm text-muted">{conditions}</p>
+        {canPropose ? (
+          <p className="mt-3 flex flex-wrap gap-2">
+            <Link className="btn-primary no-underline" to={`/proposals/new?record=${record.id}&kind=revision`}>Propose a new value</Link>
+            <Link className="btn no-underline" to={`/proposals/new?record=${record.id}&kind=retirement`}>Propose retiring this record</Link>
+          </p>
+        ) : null}
       </header>
       <SimulationCaution />
       <section className="card grid gap-4 p-4 md:grid-cols-[14rem_1fr]" aria-labelledby="current-heading">

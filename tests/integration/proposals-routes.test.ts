@@ -48,6 +48,15 @@ afterAll(async () => {
 });
 
 describe("the proposal form without JavaScript", () => {
+  it("is offered from a record page to contributors, and not to readers", async () => {
+    const reader = await HttpClient.signedIn(app.url, ids.priya);
+    const forContributor = await (await as.tomas.get(`/records/${gasbLattice}`)).text();
+    expect(forContributor).toContain(`href="/proposals/new?record=${gasbLattice}&amp;kind=revision"`);
+    expect(forContributor).toContain(`href="/proposals/new?record=${gasbLattice}&amp;kind=retirement"`);
+    const forReader = await (await reader.get(`/records/${gasbLattice}`)).text();
+    expect(forReader).not.toContain("/proposals/new?record=");
+  });
+
   it("answers a refused submission with 400, the message at its field and everything typed still in the form", async () => {
     const r = await as.tomas.post(`/proposals/new?record=${gasbLattice}&kind=revision`, {
       intent: "submit", kind: "revision", recordId: String(gasbLattice), material: "GaSb", quantity: "lattice_a",
