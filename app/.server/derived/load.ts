@@ -50,10 +50,10 @@ async function substrateCandidates(ex: Executor, exceptId: number): Promise<Deri
     .from(materials)
     .innerJoin(records, eq(records.materialId, materials.id))
     .innerJoin(quantities, eq(quantities.id, records.quantityId))
-    .where(and(ne(materials.kind, "alloy"), ne(materials.id, exceptId), eq(quantities.key, "lattice_a"), eq(records.status, "active")))
+    .where(and(ne(materials.kind, "alloy"), ne(materials.id, exceptId), eq(quantities.key, "lattice_a"), eq(records.status, "active"), eq(records.temperatureK, "300.000")))
     .orderBy(asc(materials.key));
-  const out: DerivedInputs["substrates"][number][] = [];
-  for (const m of rows) out.push({ material: { key: m.key, name: m.name, kind: m.kind }, values: await materialCheckValues(ex, m.id) });
+  // In parallel: the pool spreads the per-substrate reads over its connections instead of one after another.
+  const out = await Promise.all(rows.map(async (m) => ({ material: { key: m.key, name: m.name, kind: m.kind }, values: await materialCheckValues(ex, m.id) })));
   return out.filter((s) => s.values.some((v) => v.quantityKey === "lattice_a" && v.temperatureK !== null && Number(v.temperatureK) === 300));
 }
 
