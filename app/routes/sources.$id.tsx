@@ -1,4 +1,4 @@
-import { data, Link } from "react-router";
+import { data } from "react-router";
 import { z } from "zod";
 import type { Route } from "./+types/sources.$id";
 import { db } from "~/.server/db/client";
@@ -28,7 +28,7 @@ export default function SourcePage({ loaderData }: Route.ComponentProps) {
   return (
     <div className="space-y-4">
       <header>
-        <p className="label"><Link to="/sources">Sources</Link> · {source.kind === "report" ? "internal report" : source.kind === "bibtex" ? "BibTeX entry" : "DOI"}</p>
+        <p className="label"><a href="/sources">Sources</a> · {source.kind === "report" ? "internal report" : source.kind === "bibtex" ? "BibTeX entry" : "DOI"}</p>
         <h1 className="mt-1 text-2xl font-semibold tracking-tight">{source.label}</h1>
         <p className="mt-1 text-sm"><SourceReference source={source} /></p>
         {source.authors ? <p className="text-sm text-muted">{source.authors}{source.year ? `, ${source.year}` : ""}</p> : null}
@@ -58,11 +58,11 @@ export default function SourcePage({ loaderData }: Route.ComponentProps) {
             <tbody>
               {citing.map((c) => (
                 <tr key={c.revisionId} className="border-t border-rule">
-                  <td className="px-4 py-1.5"><Link to={`/materials/${encodeURIComponent(c.materialKey)}`}>{c.materialKey}</Link></td>
+                  <td className="px-4 py-1.5"><a href={`/materials/${encodeURIComponent(c.materialKey)}`}>{c.materialKey}</a></td>
                   <td className="px-4 py-1.5"><span className="font-mono">{c.quantitySymbol}</span> <span className="text-muted">{c.quantityName}</span></td>
                   <td className="px-4 py-1.5 text-muted">{conditionsLabel({ quantityKey: c.quantityKey, valley: c.valley, temperatureK: c.temperatureK, composition: c.composition })}</td>
                   <td className="px-4 py-1.5">{c.kind === "retirement" ? <span className="text-fail">retirement</span> : <ValueWithUnit value={c.value} unit={c.unit} />}</td>
-                  <td className="px-4 py-1.5"><Link to={`/records/${c.recordId}`}>rev {c.seq}</Link> <StateBadge state={c.state} /></td>
+                  <td className="px-4 py-1.5"><a href={`/records/${c.recordId}`}>rev {c.seq}</a> <StateBadge state={c.state} /></td>
                   <td className="px-4 py-1.5 text-muted">{c.locator}</td>
                 </tr>
               ))}

@@ -1,4 +1,3 @@
-import { Link } from "react-router";
 import { z } from "zod";
 import type { Route } from "./+types/sources";
 import { db } from "~/.server/db/client";
@@ -38,7 +37,7 @@ export default function Sources({ loaderData }: Route.ComponentProps) {
             <li key={s.id} className="card p-4">
               <div className="flex flex-wrap items-baseline justify-between gap-2">
                 <h2 className="font-semibold">
-                  <Link to={`/sources/${s.id}`}>{s.label}</Link> <span className="text-xs font-normal text-muted">{KIND[s.kind]}</span>
+                  <a href={`/sources/${s.id}`}>{s.label}</a> <span className="text-xs font-normal text-muted">{KIND[s.kind]}</span>
                 </h2>
                 <p className="text-xs text-muted">
                   cited by <span className="figure">{s.revisionCount}</span> revision{s.revisionCount === 1 ? "" : "s"}, <span className="figure">{s.currentCount}</span> current value
@@ -52,10 +51,10 @@ export default function Sources({ loaderData }: Route.ComponentProps) {
                   <tbody>
                     {s.values.map((v) => (
                       <tr key={v.recordId} className="border-t border-rule">
-                        <td className="w-28 py-1 pr-3"><Link to={`/materials/${encodeURIComponent(v.materialKey)}`}>{v.materialKey}</Link></td>
+                        <td className="w-28 py-1 pr-3"><a href={`/materials/${encodeURIComponent(v.materialKey)}`}>{v.materialKey}</a></td>
                         <td className="w-64 py-1 pr-3"><span className="font-mono">{v.quantitySymbol}</span> <span className="text-muted">{v.quantityName}</span></td>
                         <td className="w-44 py-1 pr-3 text-muted">{conditionsLabel({ quantityKey: v.quantityKey, valley: v.valley, temperatureK: v.temperatureK, composition: v.composition })}</td>
-                        <td className="w-40 py-1 pr-3"><Link to={`/records/${v.recordId}`} className="no-underline"><ValueWithUnit value={v.value} unit={v.unit} className="text-ink" /></Link></td>
+                        <td className="w-40 py-1 pr-3"><a href={`/records/${v.recordId}`} className="no-underline"><ValueWithUnit value={v.value} unit={v.unit} className="text-ink" /></a></td>
                         <td className="truncate py-1 text-muted" title={v.locator ?? undefined}>{v.locator}</td>
                       </tr>
                     ))}
@@ -66,7 +65,7 @@ export default function Sources({ loaderData }: Route.ComponentProps) {
               )}
               {s.revisionCount > s.values.length ? (
                 <p className="mt-1 text-sm">
-                  <Link to={`/sources/${s.id}`}>{s.revisionCount === 1 ? "The revision citing it" : `All ${s.revisionCount} revisions citing it`}</Link>
+                  <a href={`/sources/${s.id}`}>{s.revisionCount === 1 ? "The revision citing it" : `All ${s.revisionCount} revisions citing it`}</a>
                 </p>
               ) : null}
             </li>

@@ -17,7 +17,7 @@ const { values: args } = parseArgs({
   options: {
     revisions: { type: "string", default: "100000" },
     requests: { type: "string", default: "250" },
-    concurrency: { type: "string", default: "8" },
+    concurrency: { type: "string", default: "4" },
     keep: { type: "boolean", default: false },
   },
 });

@@ -354,7 +354,7 @@ export async function registryOptions(ex: Executor): Promise<RegistryOptions> {
 }
 
 /** Beyond this many materials (in the chosen family, or all) the registry's filter takes a typed key instead of a list. */
-export const MATERIAL_LIST_LIMIT = 200;
+export const MATERIAL_LIST_LIMIT = 100;
 
 export type RegistryFilterOptions = Omit<RegistryOptions, "materials"> & { materials: RegistryOptions["materials"] | null };
 

@@ -1,5 +1,4 @@
 import type { ReactNode } from "react";
-import { Link } from "react-router";
 import type { MaterialDetail, RecordWithHistory } from "~/.server/registry/queries";
 import { quantityByKey } from "~/domain/quantities";
 import { conditionsLabel, formatDay, methodLabel, StateBadge, UncertaintyText, ValueWithUnit } from "./format";
@@ -22,7 +21,7 @@ export function MaterialHeader({ material }: { material: MaterialDetail }) {
   return (
     <header>
       <p className="label">
-        <Link to="/materials">Materials</Link> · {material.family.name}
+        <a href="/materials">Materials</a> · {material.family.name}
       </p>
       <h1 className="mt-1 text-2xl font-semibold tracking-tight">
         {material.name} <span className="font-mono text-lg text-muted">{material.formula}</span>
@@ -32,8 +31,8 @@ export function MaterialHeader({ material }: { material: MaterialDetail }) {
         {material.endMemberA && material.endMemberB ? (
           <>
             ; {material.compositionVariable ?? "x"} is the fraction of end member A ={" "}
-            <Link to={`/materials/${encodeURIComponent(material.endMemberA.key)}`}>{material.endMemberA.key}</Link>, the rest is B ={" "}
-            <Link to={`/materials/${encodeURIComponent(material.endMemberB.key)}`}>{material.endMemberB.key}</Link>
+            <a href={`/materials/${encodeURIComponent(material.endMemberA.key)}`}>{material.endMemberA.key}</a>, the rest is B ={" "}
+            <a href={`/materials/${encodeURIComponent(material.endMemberB.key)}`}>{material.endMemberB.key}</a>
           </>
         ) : null}
         .{material.description ? ` ${material.description}` : ""}
@@ -79,7 +78,7 @@ function RecordItem({ record, selection, action }: { record: RecordWithHistory; 
             </h4>
             {head ? <Provenance revision={head} unit={q.canonicalUnit} /> : null}
             <p className="mt-2 text-sm">
-              <Link to={`/records/${record.id}`}>Record page</Link>
+              <a href={`/records/${record.id}`}>Record page</a>
             </p>
           </div>
           <RevisionHistory recordId={record.id} revisions={record.revisions} unit={q.canonicalUnit} action={action} selection={selection} />

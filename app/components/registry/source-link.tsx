@@ -1,4 +1,3 @@
-import { Link } from "react-router";
 import { doiUrl } from "~/domain/citations";
 
 export type SourceLinkData = { id: number; kind: "doi" | "bibtex" | "report"; label: string; title: string; reference?: string; doi: string | null; reportNumber: string | null };
@@ -8,7 +7,7 @@ export function SourceLink({ source, locator }: { source: SourceLinkData | null;
   if (!source) return <span className="text-muted">no source</span>;
   return (
     <span>
-      <Link to={`/sources/${source.id}`} title={source.title}>{source.label}</Link>
+      <a href={`/sources/${source.id}`} title={source.title}>{source.label}</a>
       {locator ? <span className="text-muted">, {locator}</span> : null}
     </span>
   );
