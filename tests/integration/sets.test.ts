@@ -3,7 +3,7 @@ import os from "node:os";
 import path from "node:path";
 import { and, eq, sql } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { auditLog, parameterSets, releaseItems, releases, records } from "~/.server/db/schema";
+import { auditLog, notices, parameterSets, releaseItems, releases, records } from "~/.server/db/schema";
 import type { Sink } from "~/.server/mail/sink";
 import { loadUser, type CurrentUser } from "~/.server/permissions";
 import { SetError } from "~/.server/sets/errors";
@@ -174,6 +174,8 @@ describe("moved since the last release, comparing, and watching", () => {
     expect(await setWatch(reader, "gaas-gaps", true, null)).toEqual({ changed: true });
     expect(await setWatch(reader, "gaas-gaps", true, null)).toEqual({ changed: false });
     await setWatch(lead, "gaas-gaps", true, null);
+    const digestReader = await person("hanna.lindqvist");
+    await setWatch(digestReader, "gaas-gaps", true, null);
     const watchAudit = await t.db.select().from(auditLog).where(and(eq(auditLog.action, "set.watched"), eq(auditLog.actorId, reader.id)));
     expect(watchAudit).toHaveLength(1);
 
@@ -208,6 +210,14 @@ describe("moved since the last release, comparing, and watching", () => {
     expect(mail.html).toContain("/sets/gaas-gaps/compare?from=1&amp;to=2");
     const toLead = (await readMailbox(mailboxDir)).filter((m) => m.to.includes(lead.email.toLowerCase()) && m.subject.includes("release 2"));
     expect(toLead).toEqual([]);
+    // Hanna chose the daily digest: no mail now, one queued notice with the same summary.
+    const toDigest = (await readMailbox(mailboxDir)).filter((m) => m.to.includes(digestReader.email.toLowerCase()) && m.subject.includes("release 2"));
+    expect(toDigest).toEqual([]);
+    const queued = await t.db.select().from(notices).where(and(eq(notices.userId, digestReader.id), eq(notices.kind, "set.frozen")));
+    expect(queued).toHaveLength(1);
+    expect(queued[0].bodyText).toContain("Against release 1: 1 changed, 0 added, 0 removed, 4 unchanged.");
+    expect(queued[0].sentAt).toBeNull();
+    await setWatch(digestReader, "gaas-gaps", false, null);
     expect(await setWatch(reader, "gaas-gaps", false, null)).toEqual({ changed: true });
     expect(await t.db.select().from(auditLog).where(and(eq(auditLog.action, "set.unwatched"), eq(auditLog.actorId, reader.id)))).toHaveLength(1);
   });

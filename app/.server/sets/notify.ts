@@ -1,6 +1,8 @@
+import { db } from "../db/client";
 import { env } from "../env";
 import { sendMail } from "../mail/send";
 import { layout } from "../mail/templates";
+import { queueNotices } from "../workflow/notices";
 import { compareSet, comparisonLines, type Comparison } from "./compare";
 import { requireRelease, requireSet, watchersOf } from "./queries";
 
@@ -26,7 +28,15 @@ export async function notifyWatchersOfFreeze(slug: string, number: number, actor
   const summary = freezeSummary(number, release.itemCount, comparison);
   const publicUrl = env().BANDLEDGER_PUBLIC_URL.replace(/\/$/, "");
   const link = comparison ? `${publicUrl}/sets/${slug}/compare?from=${number - 1}&to=${number}` : `${publicUrl}/sets/${slug}/releases/${number}`;
-  for (const w of watchers) {
+  // Watchers who chose the daily digest get the same summary in it, through the proposals' notice queue.
+  const digest = watchers.filter((w) => w.notifyMode === "digest");
+  await queueNotices(db(), digest.map((w) => w.id), {
+    kind: "set.frozen",
+    subject: `${set.name}: release ${number} frozen`,
+    bodyText: [`${release.frozenBy} froze release ${number} of ${set.name} (${release.itemCount} values).`, `SHA-256 of the release: ${release.sha256}`, summary.headline, ...summary.lines.slice(0, 50)].join("\n"),
+    link,
+  });
+  for (const w of watchers.filter((x) => x.notifyMode !== "digest")) {
     const mail = layout({
       to: w.email,
       subject: `${set.name}: release ${number} frozen`,

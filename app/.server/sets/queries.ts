@@ -218,9 +218,9 @@ export async function isWatching(setId: number, userId: number, ex: Executor = d
   return Boolean(row);
 }
 
-export async function watchersOf(setId: number, ex: Executor = db()): Promise<{ id: number; email: string; name: string }[]> {
+export async function watchersOf(setId: number, ex: Executor = db()): Promise<{ id: number; email: string; name: string; notifyMode: "immediate" | "digest" }[]> {
   return ex
-    .select({ id: users.id, email: users.email, name: users.name })
+    .select({ id: users.id, email: users.email, name: users.name, notifyMode: users.notifyMode })
     .from(setWatches)
     .innerJoin(users, eq(users.id, setWatches.userId))
     .where(and(eq(setWatches.setId, setId), eq(users.active, true)))
