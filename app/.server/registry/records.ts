@@ -80,37 +80,14 @@ export async function appendRevision(tx: Tx, input: AppendRevisionInput): Promis
   if (!prepared.ok) {
     throw new RegistryError("invalid", "The revision has errors.", { fieldErrors: prepared.errors as Record<string, string> });
   }
-  const [source] = await tx.select({ id: sources.id }).from(sources).where(eq(sources.id, prepared.revision.sourceId));
-  if (!source) throw new RegistryError("invalid", "The source does not exist.", { fieldErrors: { sourceId: "Choose an existing source." } });
+  await requireSource(tx, prepared.revision.sourceId);
   await checkPeople(tx, input);
-  const seq = await nextSeq(tx, record.id);
-  const approvedAt = input.approvedAt ?? new Date();
-  const [{ id }] = await tx
-    .insert(revisions)
-    .values({
-      recordId: record.id,
-      seq,
-      kind: "value",
-      ...prepared.revision,
-      proposedBy: input.proposedBy,
-      approvedBy: input.approvedBy,
-      proposalId: input.proposalId ?? null,
-      proposedAt: input.proposedAt ?? approvedAt,
-      approvedAt,
-    })
-    .$returningId();
-  await tx
-    .update(records)
-    .set({
-      currentRevisionId: id,
-      status: "active",
-      version: sql`${records.version} + 1`,
-      updatedAt: approvedAt,
-      currentMethod: prepared.revision.method,
-      currentValueNumeric: prepared.revision.valueNumeric,
-      currentSourceId: prepared.revision.sourceId,
-    })
-    .where(eq(records.id, record.id));
+  const { id, seq } = await writeCurrentRevision(tx, record.id, input, { kind: "value", ...prepared.revision }, {
+    status: "active",
+    currentMethod: prepared.revision.method,
+    currentValueNumeric: prepared.revision.valueNumeric,
+    currentSourceId: prepared.revision.sourceId,
+  });
   return { recordId: record.id, revisionId: id, seq, revision: prepared.revision };
 }
 
@@ -178,42 +155,46 @@ export async function retireRecord(tx: Tx, input: RetireRecordInput): Promise<{ 
   if (record.status === "retired") throw new RegistryError("retired", `Record ${record.id} is already retired.`, { recordId: record.id });
   const reason = input.reason.trim();
   if (!reason) throw new RegistryError("invalid", "State why the record is retired.", { fieldErrors: { reason: "State why the record is retired." } });
-  if (input.sourceId) {
-    const [source] = await tx.select({ id: sources.id }).from(sources).where(eq(sources.id, input.sourceId));
-    if (!source) throw new RegistryError("invalid", "The source does not exist.", { fieldErrors: { sourceId: "Choose an existing source." } });
-  }
+  if (input.sourceId) await requireSource(tx, input.sourceId);
   await checkPeople(tx, input);
-  const seq = await nextSeq(tx, record.id);
-  const approvedAt = input.approvedAt ?? new Date();
+  const { id, seq } = await writeCurrentRevision(
+    tx, record.id, input,
+    { kind: "retirement", notes: reason.slice(0, 4000), sourceId: input.sourceId ?? null, locator: input.locator ?? null },
+    { status: "retired", currentMethod: null, currentValueNumeric: null, currentSourceId: input.sourceId ?? null },
+  );
+  return { recordId: record.id, revisionId: id, seq };
+}
+
+async function requireSource(tx: Tx, sourceId: number): Promise<void> {
+  const [source] = await tx.select({ id: sources.id }).from(sources).where(eq(sources.id, sourceId));
+  if (!source) throw new RegistryError("invalid", "The source does not exist.", { fieldErrors: { sourceId: "Choose an existing source." } });
+}
+
+type RevisionBody = Omit<typeof revisions.$inferInsert, "id" | "recordId" | "seq" | "proposedBy" | "approvedBy" | "proposalId" | "proposedAt" | "approvedAt">;
+type ListingCopies = Pick<typeof records.$inferInsert, "status" | "currentMethod" | "currentValueNumeric" | "currentSourceId">;
+
+// The one place a revision becomes current: the record's pointer, version and listing copies change together.
+async function writeCurrentRevision(tx: Tx, recordId: number, approval: Approval, body: RevisionBody, copies: ListingCopies): Promise<{ id: number; seq: number }> {
+  const seq = await nextSeq(tx, recordId);
+  const approvedAt = approval.approvedAt ?? new Date();
   const [{ id }] = await tx
     .insert(revisions)
     .values({
-      recordId: record.id,
+      ...body,
+      recordId,
       seq,
-      kind: "retirement",
-      notes: reason.slice(0, 4000),
-      sourceId: input.sourceId ?? null,
-      locator: input.locator ?? null,
-      proposedBy: input.proposedBy,
-      approvedBy: input.approvedBy,
-      proposalId: input.proposalId ?? null,
-      proposedAt: input.proposedAt ?? approvedAt,
+      proposedBy: approval.proposedBy,
+      approvedBy: approval.approvedBy,
+      proposalId: approval.proposalId ?? null,
+      proposedAt: approval.proposedAt ?? approvedAt,
       approvedAt,
     })
     .$returningId();
   await tx
     .update(records)
-    .set({
-      currentRevisionId: id,
-      status: "retired",
-      version: sql`${records.version} + 1`,
-      updatedAt: approvedAt,
-      currentMethod: null,
-      currentValueNumeric: null,
-      currentSourceId: input.sourceId ?? null,
-    })
-    .where(eq(records.id, record.id));
-  return { recordId: record.id, revisionId: id, seq };
+    .set({ ...copies, currentRevisionId: id, version: sql`${records.version} + 1`, updatedAt: approvedAt })
+    .where(eq(records.id, recordId));
+  return { id, seq };
 }
 
 export function isDuplicateKey(e: unknown): boolean {
