@@ -35,6 +35,19 @@ export default defineConfig({
           fileParallelism: false,
         },
       },
+      {
+        resolve: { alias },
+        test: {
+          // Faults, races and hostile input. Bounded inside `npm test`; BANDLEDGER_RELIABILITY=full (npm run test:reliability) runs every round.
+          name: "reliability",
+          globalSetup: ["tests/support/global-setup.ts"],
+          include: ["tests/reliability/**/*.test.ts"],
+          environment: "node",
+          testTimeout: 180_000,
+          hookTimeout: 180_000,
+          fileParallelism: false,
+        },
+      },
     ],
   },
 });
