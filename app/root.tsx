@@ -5,10 +5,12 @@ import type { Route } from "./+types/root";
 import { AppShell, type ShellUser } from "./components/app-shell";
 import { FlashMessage } from "./components/flash-message";
 import { useNonce } from "./components/nonce";
-import { databaseAvailable } from "./.server/db/health";
+import { databaseAvailable, databaseLossAs503 } from "./.server/db/health";
 import { getOptionalUser } from "./.server/permissions";
 import { commitSession, getSession } from "./.server/session";
 import "./app.css";
+
+export const middleware: Route.MiddlewareFunction[] = [(_, next) => databaseLossAs503(next)];
 
 export async function loader({ request }: Route.LoaderArgs) {
   if (!(await databaseAvailable())) {

@@ -1,4 +1,4 @@
-import { and, eq } from "drizzle-orm";
+import { and, eq, sql } from "drizzle-orm";
 import { data, redirect } from "react-router";
 import { db } from "./db/client";
 import { familyLeads, users, type Role } from "./db/schema";
@@ -20,11 +20,22 @@ export function hasRole(user: Pick<CurrentUser, "role">, role: Role): boolean {
   return RANK[user.role] >= RANK[role];
 }
 
+// The user and the families they lead, in one round trip: every signed-in page and API call asks.
+export const currentUserColumns = {
+  id: users.id,
+  email: users.email,
+  name: users.name,
+  role: users.role,
+  leads: sql<string | null>`(SELECT GROUP_CONCAT(${familyLeads.familyId}) FROM ${familyLeads} WHERE ${familyLeads.userId} = ${users.id})`,
+};
+
+export function toCurrentUser(row: { id: number; email: string; name: string; role: Role; leads: string | null }): CurrentUser {
+  return { id: row.id, email: row.email, name: row.name, role: row.role, leadFamilyIds: row.leads ? row.leads.split(",").map(Number).sort((a, b) => a - b) : [] };
+}
+
 export async function loadUser(userId: number): Promise<CurrentUser | null> {
-  const [row] = await db().select().from(users).where(and(eq(users.id, userId), eq(users.active, true))).limit(1);
-  if (!row) return null;
-  const leads = await db().select({ familyId: familyLeads.familyId }).from(familyLeads).where(eq(familyLeads.userId, row.id));
-  return { id: row.id, email: row.email, name: row.name, role: row.role, leadFamilyIds: leads.map((l) => l.familyId) };
+  const [row] = await db().select(currentUserColumns).from(users).where(and(eq(users.id, userId), eq(users.active, true))).limit(1);
+  return row ? toCurrentUser(row) : null;
 }
 
 export async function getOptionalUser(request: Request): Promise<CurrentUser | null> {

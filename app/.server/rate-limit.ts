@@ -56,3 +56,19 @@ export async function readCount(bucket: string, windowSeconds: number): Promise<
     WHERE bucket = ${bucket} AND window_start >= NOW(3) - INTERVAL ${windowSeconds} SECOND`)) as unknown as [{ n: number }[]];
   return rows.length ? Number(rows[0].n) : 0;
 }
+
+// The API's per-minute limit, counted in this process: one app process serves the product, and a counter in
+// memory keeps a busy pipeline's reads from each turning into a committed write. Fixed windows, like countHit.
+const windows = new Map<string, { startedAt: number; count: number }>();
+
+export function countHitInProcess(bucket: string, windowSeconds: number, now = Date.now()): { count: number; secondsLeft: number } {
+  const length = windowSeconds * 1000;
+  let w = windows.get(bucket);
+  if (!w || now - w.startedAt >= length) {
+    if (windows.size > 10_000) for (const [k, v] of windows) if (now - v.startedAt >= length) windows.delete(k);
+    w = { startedAt: now, count: 0 };
+    windows.set(bucket, w);
+  }
+  w.count += 1;
+  return { count: w.count, secondsLeft: Math.max(1, Math.ceil((w.startedAt + length - now) / 1000)) };
+}

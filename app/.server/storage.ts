@@ -2,6 +2,7 @@ import { createHash, randomBytes } from "node:crypto";
 import { existsSync } from "node:fs";
 import { mkdir, readFile, rename, rm, writeFile } from "node:fs/promises";
 import path from "node:path";
+import { data } from "react-router";
 import { decodeCsvBytes, formatBytes } from "~/domain/csv-proposals";
 import { env } from "./env";
 
@@ -83,11 +84,43 @@ export async function readStoredFile(sha256: string): Promise<Buffer> {
   return bytes;
 }
 
+const FORM_TYPE = /^\s*(application\/x-www-form-urlencoded|multipart\/form-data)\s*(;|$)/i;
+
+// A form action answers JSON, plain text or bytes it cannot read with a page that says so, not with a 500.
+function unreadableForm(status: 400 | 415, message: string): never {
+  throw data({ message }, { status, statusText: status === 415 ? "Not a form" : "The form could not be read" });
+}
+
+/** Whether every percent-escape and raw byte of a URL-encoded body is UTF-8 (URLSearchParams would put U+FFFD in silently). */
+function urlEncodedIsUtf8(body: Buffer): boolean {
+  if (!utf8Strict(body)) return false;
+  try {
+    for (const part of body.toString("utf8").split("&")) decodeURIComponent(part.replace(/\+/g, " "));
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+function utf8Strict(bytes: Uint8Array): boolean {
+  try {
+    new TextDecoder("utf-8", { fatal: true }).decode(bytes);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
 /**
  * Reads a posted form, multipart or not, refusing a body over the limit before it is all in memory (React
- * Router's request.formData() would read any size).
+ * Router's request.formData() would read any size). Another content type is a 415, a body that is not a
+ * well-formed form (broken multipart, bytes that are not UTF-8) a 400; both thrown as a page with the reason.
  */
 export async function readLimitedFormData(request: Request, maxBytes: number): Promise<FormData> {
+  const type = request.headers.get("content-type");
+  if (type !== null && !FORM_TYPE.test(type)) {
+    unreadableForm(415, `This address takes a form (application/x-www-form-urlencoded or multipart/form-data), not ${type.split(";")[0].trim().slice(0, 60) || "an empty content type"}.`);
+  }
   const declared = Number(request.headers.get("content-length") ?? "0");
   if (declared > maxBytes) throw new StorageError("too_large", `The upload is ${formatBytes(declared)}; at most ${formatBytes(maxBytes)} is taken.`);
   if (!request.body) return new FormData();
@@ -105,5 +138,25 @@ export async function readLimitedFormData(request: Request, maxBytes: number): P
     chunks.push(value);
   }
   const body = Buffer.concat(chunks);
-  return new Response(body, { headers: { "content-type": request.headers.get("content-type") ?? "application/x-www-form-urlencoded" } }).formData();
+  const contentType = type ?? "application/x-www-form-urlencoded";
+  const multipart = /^\s*multipart\//i.test(contentType);
+  if (!multipart && !urlEncodedIsUtf8(body)) unreadableForm(400, "The form is not well-formed UTF-8 (a raw byte or a %-escape is broken); send it again from the page.");
+  try {
+    return await new Response(body, { headers: { "content-type": contentType } }).formData();
+  } catch {
+    return unreadableForm(400, multipart ? "The multipart form is malformed (no boundary, or a part is cut off); send it again from the page." : "The form could not be read; send it again from the page.");
+  }
+}
+
+// Generous for any plain form of ours (a pasted BibTeX entry, a long description), far below what hurts.
+export const MAX_PLAIN_FORM_BYTES = 1024 * 1024;
+
+/** request.formData() for the form actions: the same checks as readLimitedFormData, a body over 1 MB a 413 page. */
+export async function readForm(request: Request): Promise<FormData> {
+  try {
+    return await readLimitedFormData(request, MAX_PLAIN_FORM_BYTES);
+  } catch (e) {
+    if (e instanceof StorageError) throw data({ message: e.message }, { status: 413, statusText: "The form is too large" });
+    throw e;
+  }
 }

@@ -116,10 +116,14 @@ export const recordHistorySchema = z
 
 export const RECORDS_PAGE_LIMIT_MAX = 500;
 
+// A filter that cannot be a key (quotes, spaces, markup) is a malformed request, not a filter that matches nothing.
+const catalogueKey = (max: number) =>
+  z.string().max(max).regex(/^[A-Za-z0-9_().-]+$/, "A key holds letters, digits and _ ( ) . - only, as /api/v1/materials and /api/v1/quantities list them.");
+
 export const recordsQuerySchema = z.object({
-  family: z.string().max(40).optional().meta({ description: "Material family key, e.g. arsenides." }),
-  material: z.string().max(40).optional().meta({ description: "Material key, e.g. GaAs." }),
-  quantity: z.string().max(64).optional().meta({ description: "Quantity key, e.g. eg." }),
+  family: catalogueKey(40).optional().meta({ description: "Material family key, e.g. arsenides." }),
+  material: catalogueKey(40).optional().meta({ description: "Material key, e.g. GaAs." }),
+  quantity: catalogueKey(64).optional().meta({ description: "Quantity key, e.g. eg." }),
   valley: valley.optional(),
   method: method.optional(),
   status: z.enum(["active", "retired", "all"]).default("active"),
@@ -208,16 +212,17 @@ export const comparisonSchema = z
   .meta({ id: "Comparison" });
 
 export const freezeBodySchema = z
-  .object({ expectedVersion: z.number().int().positive().optional().meta({ description: "The set version you saw; a later edit or freeze makes this a 409." }) })
+  .strictObject({ expectedVersion: z.number().int().positive().optional().meta({ description: "The set version you saw; a later edit or freeze makes this a 409." }) })
   .meta({ id: "FreezeRequest" });
 
 export const NFE_MAX_COEFFICIENTS = 50;
 
+// Strict: a misspelt field ("stated_gap") would otherwise be dropped and the check run without it.
 export const nfeCheckBodySchema = z
-  .object({
+  .strictObject({
     periodAngstrom: z.number().positive().max(100).meta({ description: "Lattice period a in Å.", example: 5.65325 }),
     coefficients: z
-      .array(z.object({ n: z.number().int().min(1).max(NFE_MAX_COEFFICIENTS), valueEv: z.number().min(-10).max(10) }))
+      .array(z.strictObject({ n: z.number().int().min(1).max(NFE_MAX_COEFFICIENTS), valueEv: z.number().min(-10).max(10) }))
       .min(1)
       .max(NFE_MAX_COEFFICIENTS)
       .meta({ description: "Fourier coefficients U_n in eV of U(x) = Σ U_n e^{inGx}, U_-n = U_n." }),

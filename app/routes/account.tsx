@@ -5,6 +5,7 @@ import { accountDetails, profileInput, updateProfile } from "~/.server/auth/acco
 import { requireUser } from "~/.server/permissions";
 import { redirectWithFlash } from "~/.server/session";
 import { createApiToken, listApiTokens, revokeApiToken, tokenNameField } from "~/.server/tokens";
+import { readForm } from "~/.server/storage";
 import { FieldError, invalidProps } from "~/components/field-error";
 import { usePreserveFormOnSignIn } from "~/components/preserve-form-on-sign-in";
 
@@ -27,7 +28,7 @@ type ActionResult = { intent: string; errors: Errors; values: Record<string, str
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   const values = Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)]));
   const fail = (errors: Errors) => data<ActionResult>({ intent, errors, values, createdToken: null }, { status: 400 });

@@ -4,6 +4,7 @@ import { createFamily, familyCreateInput, familyRenameInput, listFamilies, renam
 import { fieldErrors } from "~/.server/admin/users";
 import { requireRole } from "~/.server/permissions";
 import { redirectWithFlash } from "~/.server/session";
+import { readForm } from "~/.server/storage";
 import { FieldError, invalidProps } from "~/components/field-error";
 
 export const meta: Route.MetaFunction = () => [{ title: "Material families · Admin · Bandledger" }];
@@ -17,7 +18,7 @@ type ActionResult = { intent: string; errors: Record<string, string>; values: Re
 
 export async function action({ request }: Route.ActionArgs) {
   const admin = await requireRole(request, "admin");
-  const form = await request.formData();
+  const form = await readForm(request);
   const values = Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)]));
   const intent = values.intent ?? "";
   const fail = (errors: Record<string, string>, familyId: number | null = null) => data<ActionResult>({ intent, errors, values, familyId }, { status: 400 });

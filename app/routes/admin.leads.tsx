@@ -5,6 +5,7 @@ import { assignLead, leadCandidates, leadInput, unassignLead } from "~/.server/a
 import { fieldErrors } from "~/.server/admin/users";
 import { requireRole } from "~/.server/permissions";
 import { redirectWithFlash } from "~/.server/session";
+import { readForm } from "~/.server/storage";
 import { FieldError, invalidProps } from "~/components/field-error";
 
 export const meta: Route.MetaFunction = () => [{ title: "Lead assignments · Admin · Bandledger" }];
@@ -19,7 +20,7 @@ type ActionResult = { intent: string; errors: Record<string, string>; values: Re
 
 export async function action({ request }: Route.ActionArgs) {
   const admin = await requireRole(request, "admin");
-  const form = await request.formData();
+  const form = await readForm(request);
   const values = Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)]));
   const intent = values.intent ?? "";
   const fail = (errors: Record<string, string>) => data<ActionResult>({ intent, errors, values }, { status: 400 });

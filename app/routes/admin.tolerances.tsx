@@ -3,6 +3,7 @@ import type { Route } from "./+types/admin.tolerances";
 import { listTolerances, setTolerance, toleranceInput } from "~/.server/checks";
 import { requireRole } from "~/.server/permissions";
 import { redirectWithFlash } from "~/.server/session";
+import { readForm } from "~/.server/storage";
 import { FieldError, invalidProps } from "~/components/field-error";
 
 export const meta: Route.MetaFunction = () => [{ title: "Check tolerances · Admin · Bandledger" }];
@@ -16,7 +17,7 @@ type ActionResult = { errors: Record<string, string>; values: Record<string, str
 
 export async function action({ request }: Route.ActionArgs) {
   const admin = await requireRole(request, "admin");
-  const form = await request.formData();
+  const form = await readForm(request);
   const values = { quantity: String(form.get("quantity") ?? ""), tolerance: String(form.get("tolerance") ?? "") };
   const parsed = toleranceInput.safeParse(values);
   if (!parsed.success) {

@@ -1,7 +1,7 @@
 import type { Route } from "./+types/api.v1.materials";
 import { materialList } from "~/.server/api/catalogue";
 import { requireApiCaller } from "~/.server/api/guard";
-import { apiJson, runApi } from "~/.server/api/respond";
+import { apiJson, readOnlyEndpoint, runApi } from "~/.server/api/respond";
 
 export async function loader({ request }: Route.LoaderArgs) {
   return runApi(async () => {
@@ -9,3 +9,5 @@ export async function loader({ request }: Route.LoaderArgs) {
     return apiJson(await materialList());
   });
 }
+
+export const action = readOnlyEndpoint;

@@ -2,7 +2,7 @@ import { z } from "zod";
 import type { Route } from "./+types/api.v1.records.history";
 import { requireApiCaller } from "~/.server/api/guard";
 import { recordHistory } from "~/.server/api/records";
-import { apiError, apiJson, runApi } from "~/.server/api/respond";
+import { apiError, apiJson, readOnlyEndpoint, runApi } from "~/.server/api/respond";
 
 const idParam = z.coerce.number().int().positive().max(2_147_483_647);
 
@@ -14,3 +14,5 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     return apiJson(await recordHistory(id.data));
   });
 }
+
+export const action = readOnlyEndpoint;

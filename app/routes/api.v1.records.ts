@@ -2,7 +2,7 @@ import type { Route } from "./+types/api.v1.records";
 import { recordsQuerySchema } from "~/domain/api-schemas";
 import { requireApiCaller } from "~/.server/api/guard";
 import { listRecordsPage } from "~/.server/api/records";
-import { apiJson, parseQuery, runApi } from "~/.server/api/respond";
+import { apiJson, parseQuery, readOnlyEndpoint, runApi } from "~/.server/api/respond";
 
 export async function loader({ request }: Route.LoaderArgs) {
   return runApi(async () => {
@@ -11,3 +11,5 @@ export async function loader({ request }: Route.LoaderArgs) {
     return apiJson(await listRecordsPage(query));
   });
 }
+
+export const action = readOnlyEndpoint;

@@ -2,7 +2,7 @@ import type { Route } from "./+types/api.v1.release-download";
 import { downloadQuerySchema } from "~/domain/api-schemas";
 import { releaseDownloadResponse } from "~/.server/api/download";
 import { requireApiCaller } from "~/.server/api/guard";
-import { apiError, parseQuery, runApi } from "~/.server/api/respond";
+import { apiError, parseQuery, readOnlyEndpoint, runApi } from "~/.server/api/respond";
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   return runApi(async () => {
@@ -13,3 +13,5 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     return releaseDownloadResponse(request, caller, params.slug, Number(raw), format);
   });
 }
+
+export const action = readOnlyEndpoint;

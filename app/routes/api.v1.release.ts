@@ -1,7 +1,7 @@
 import { z } from "zod";
 import type { Route } from "./+types/api.v1.release";
 import { requireApiCaller } from "~/.server/api/guard";
-import { apiError, apiJson, runApi } from "~/.server/api/respond";
+import { apiError, apiJson, readOnlyEndpoint, runApi } from "~/.server/api/respond";
 import { releaseDetail } from "~/.server/api/sets";
 
 const releaseNumberParam = z.coerce.number().int().positive().max(1_000_000);
@@ -18,3 +18,5 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     return apiJson(await releaseDetail(params.slug, parseReleaseNumber(params.number)));
   });
 }
+
+export const action = readOnlyEndpoint;

@@ -1,7 +1,7 @@
 import type { Route } from "./+types/api.v1.set-compare";
 import { compareQuerySchema } from "~/domain/api-schemas";
 import { requireApiCaller } from "~/.server/api/guard";
-import { apiJson, parseQuery, runApi } from "~/.server/api/respond";
+import { apiJson, parseQuery, readOnlyEndpoint, runApi } from "~/.server/api/respond";
 import { compareSet } from "~/.server/sets/compare";
 
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -11,3 +11,5 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     return apiJson(await compareSet(params.slug, from, to));
   });
 }
+
+export const action = readOnlyEndpoint;

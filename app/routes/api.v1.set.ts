@@ -1,6 +1,6 @@
 import type { Route } from "./+types/api.v1.set";
 import { requireApiCaller } from "~/.server/api/guard";
-import { apiJson, runApi } from "~/.server/api/respond";
+import { apiJson, readOnlyEndpoint, runApi } from "~/.server/api/respond";
 import { setDetail } from "~/.server/api/sets";
 
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -9,3 +9,5 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     return apiJson(await setDetail(params.slug));
   });
 }
+
+export const action = readOnlyEndpoint;

@@ -1,6 +1,6 @@
 import type { Route } from "./+types/api.v1.sets";
 import { requireApiCaller } from "~/.server/api/guard";
-import { apiJson, runApi } from "~/.server/api/respond";
+import { apiJson, readOnlyEndpoint, runApi } from "~/.server/api/respond";
 import { setList } from "~/.server/api/sets";
 
 export async function loader({ request }: Route.LoaderArgs) {
@@ -9,3 +9,5 @@ export async function loader({ request }: Route.LoaderArgs) {
     return apiJson(await setList());
   });
 }
+
+export const action = readOnlyEndpoint;

@@ -1,4 +1,5 @@
 import type { Route } from "./+types/api.v1.whoami";
+import { readOnlyEndpoint } from "~/.server/api/respond";
 import { requireApiUser } from "~/.server/tokens";
 
 // Tells a script or the browser whom its credentials stand for.
@@ -9,3 +10,5 @@ export async function loader({ request }: Route.LoaderArgs) {
     { headers: { "Cache-Control": "no-store" } },
   );
 }
+
+export const action = readOnlyEndpoint;

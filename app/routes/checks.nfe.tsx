@@ -1,5 +1,5 @@
 import { useEffect, useRef, useState } from "react";
-import { Form, Link, useFetcher } from "react-router";
+import { data, Form, Link, useFetcher } from "react-router";
 import type { Route } from "./+types/checks.nfe";
 import { NFE_MAX_ROWS, nfeQueryOf, runNfePage, type NfeFormValues, type NfePageData } from "~/.server/checks";
 import { requireUser } from "~/.server/permissions";
@@ -34,7 +34,9 @@ const EXAMPLES: { label: string; hint: string; values: NfeFormValues }[] = [
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request);
   const page = runNfePage(new URL(request.url).searchParams);
-  return { ...page, maxRows: NFE_MAX_ROWS, examples: EXAMPLES.map((e) => ({ label: e.label, hint: e.hint, query: nfeQueryOf(e.values).toString() })) };
+  const body = { ...page, maxRows: NFE_MAX_ROWS, examples: EXAMPLES.map((e) => ({ label: e.label, hint: e.hint, query: nfeQueryOf(e.values).toString() })) };
+  // A query with wrong inputs is a bad request: the page shows the messages at their fields with a 400.
+  return data(body, { status: Object.keys(page.errors).length ? 400 : 200 });
 }
 
 const DEBOUNCE_MS = 300;

@@ -9,6 +9,7 @@ import { isSetError } from "~/.server/sets/errors";
 import { orSetErrorPage } from "~/.server/sets/http";
 import { isWatching, loadSetView } from "~/.server/sets/queries";
 import { addMember, addMembersByFilter, candidateRows, freezeSet, removeMember, setWatch } from "~/.server/sets/service";
+import { readForm } from "~/.server/storage";
 import { FieldError } from "~/components/field-error";
 import { conditionText, SinceMark, SourceText, ValueText } from "~/components/release-values";
 
@@ -52,7 +53,7 @@ type ActionResult = { intent: string; error: string; field: string | null };
 
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireUser(request);
-  const form = Object.fromEntries([...(await request.formData()).entries()].map(([k, v]) => [k, String(v)]));
+  const form = Object.fromEntries([...(await readForm(request)).entries()].map(([k, v]) => [k, String(v)]));
   const intent = form.intent ?? "";
   const here = `/sets/${params.slug}`;
   const fail = (status: number, error: string, field: string | null = null) => data<ActionResult>({ intent, error, field }, { status });

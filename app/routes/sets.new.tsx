@@ -2,6 +2,7 @@ import { data, Form, redirect } from "react-router";
 import type { Route } from "./+types/sets.new";
 import { forbidden, hasRole, requireUser } from "~/.server/permissions";
 import { createSet } from "~/.server/sets/service";
+import { readForm } from "~/.server/storage";
 import { FieldError, invalidProps } from "~/components/field-error";
 
 export const meta: Route.MetaFunction = () => [{ title: "New parameter set · Bandledger" }];
@@ -15,7 +16,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
   if (!hasRole(user, "contributor")) forbidden("Contributors, leads and admins create sets.");
-  const values = Object.fromEntries([...(await request.formData()).entries()].map(([k, v]) => [k, String(v)]));
+  const values = Object.fromEntries([...(await readForm(request)).entries()].map(([k, v]) => [k, String(v)]));
   const result = await createSet(user, values, request);
   if (!result.ok) return data({ errors: result.errors, values }, { status: 400 });
   return redirect(`/sets/${result.set.slug}`);

@@ -4,6 +4,7 @@ import { retryMinute, signInMessage, tooManyCodesMessage } from "~/.server/auth/
 import { cancelPendingSignIn, codeState, requestSignInCode, submitSignInCode } from "~/.server/auth/sign-in";
 import { CODE_MAX_WRONG_TRIES } from "~/.server/auth/totp-strategy";
 import { getOptionalUser } from "~/.server/permissions";
+import { readForm } from "~/.server/storage";
 import { FieldError, invalidProps } from "~/components/field-error";
 import { LocalClock } from "~/components/local-clock";
 
@@ -24,7 +25,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "verify");
   if (intent === "restart") return cancelPendingSignIn(request);
   if (intent === "resend") {

@@ -6,6 +6,7 @@ import { safeReturnTo } from "~/.server/auth/return-to";
 import { requestSignInCode } from "~/.server/auth/sign-in";
 import { emailField } from "~/.server/auth/totp-strategy";
 import { getOptionalUser } from "~/.server/permissions";
+import { readForm } from "~/.server/storage";
 import { FieldError, invalidProps } from "~/components/field-error";
 import { LocalClock } from "~/components/local-clock";
 import { markKeptFormForRestore } from "~/components/preserve-form-on-sign-in";
@@ -21,7 +22,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   const values = { email: String(form.get("email") ?? ""), returnTo: safeReturnTo(form.get("returnTo")) };
   if (!values.email.trim()) return data({ errors: { email: signInMessage("email-required") }, values, retryAt: null }, { status: 400 });
   const email = emailField.safeParse(values.email);

@@ -1,8 +1,6 @@
-import { sql } from "drizzle-orm";
-import { db } from "../db/client";
 import { env } from "../env";
 import { hasRole, requireSameOrigin, type CurrentUser } from "../permissions";
-import { countHit } from "../rate-limit";
+import { countHitInProcess } from "../rate-limit";
 import { hashToken, requireApiUser } from "../tokens";
 import { apiError } from "./respond";
 
@@ -18,20 +16,13 @@ function bucketOf(request: Request, user: CurrentUser): { bucket: string; viaTok
   return { bucket: `api:user:${user.id}`, viaToken: false };
 }
 
-async function secondsLeft(bucket: string): Promise<number> {
-  const [rows] = (await db().execute(sql`
-    SELECT TIMESTAMPDIFF(SECOND, NOW(3), window_start + INTERVAL ${WINDOW_SECONDS} SECOND) AS s FROM rate_counters WHERE bucket = ${bucket}`)) as unknown as [{ s: number | string }[]];
-  return Math.max(1, Number(rows[0]?.s ?? WINDOW_SECONDS) + 1);
-}
-
 /** Who calls (bearer token or browser session), counted against the per-minute limit: 401 without credentials, 429 past the limit. */
 export async function requireApiCaller(request: Request): Promise<ApiCaller> {
   const user = await requireApiUser(request);
   const { bucket, viaToken } = bucketOf(request, user);
   const limit = env().BANDLEDGER_API_RATE_PER_MINUTE;
-  const n = await countHit(bucket, WINDOW_SECONDS);
+  const { count: n, secondsLeft: retryAfter } = countHitInProcess(bucket, WINDOW_SECONDS);
   if (n > limit) {
-    const retryAfter = await secondsLeft(bucket);
     throw apiError(429, "rate_limited", `More than ${limit} requests a minute; try again in ${retryAfter} s.`, null, { "Retry-After": String(retryAfter), "Cache-Control": "no-store" });
   }
   return { user, viaToken };

@@ -23,9 +23,16 @@ export function parseQuery<S extends z.ZodType>(schema: S, request: Request): z.
 export async function parseJsonBody<S extends z.ZodType>(schema: S, request: Request): Promise<z.infer<S>> {
   const type = request.headers.get("content-type") ?? "";
   if (!/^application\/json\b/i.test(type)) throw apiError(400, "invalid_content_type", "Send the body as JSON with Content-Type: application/json.", null);
+  let text: string;
+  try {
+    // JSON is UTF-8 (RFC 8259 §8.1); request.json() would turn broken bytes into U+FFFD without a word.
+    text = new TextDecoder("utf-8", { fatal: true }).decode(await request.arrayBuffer());
+  } catch {
+    throw apiError(400, "invalid_json", "The body is not UTF-8, so it is not valid JSON.", null);
+  }
   let body: unknown;
   try {
-    body = await request.json();
+    body = JSON.parse(text);
   } catch {
     throw apiError(400, "invalid_json", "The body is not valid JSON.", null);
   }
@@ -38,6 +45,14 @@ function badRequest(error: z.ZodError): Response {
   const issue = error.issues[0];
   const field = issue.path.length ? issue.path.join(".") : null;
   return apiError(400, "invalid_request", field ? `${field}: ${issue.message}` : issue.message, field);
+}
+
+/**
+ * The action of a read-only endpoint: without one, React Router answers another method with a bare 405
+ * "Unexpected Server Error"; this says which method the endpoint takes, in the API's own error format.
+ */
+export function readOnlyEndpoint({ request }: { request: Request }): Response {
+  return apiError(405, "method_not_allowed", `${request.method.toUpperCase().slice(0, 16)} is not allowed here: this endpoint only reads (GET); see /api/v1/openapi.json.`, null, { Allow: "GET, HEAD" });
 }
 
 /** Runs an API handler: thrown Responses pass through, service refusals become their JSON error, the rest a 500. */

@@ -50,7 +50,7 @@ const text = z.string().trim().max(40).catch("");
 
 const querySchema = z.object({
   period: text.default(""),
-  unit: z.enum(["angstrom", "nm"]).catch("angstrom"),
+  unit: z.string().trim().max(40).catch(""),
   gap: text.default(""),
   mass: text.default(""),
   stated: text.default(""),
@@ -74,11 +74,15 @@ export function readNfeQuery(params: URLSearchParams): { values: NfeFormValues; 
   const us = params.getAll("u").map((s) => s.trim().slice(0, 40));
   const rowCount = Math.min(NFE_MAX_ROWS, Math.max(q.rows, ns.length, us.length, 1));
   const coefficients = Array.from({ length: rowCount }, (_, i) => ({ n: ns[i] ?? "", u: us[i] ?? "" }));
-  const values: NfeFormValues = { period: q.period, unit: q.unit, coefficients, gap: q.gap || "1", mass: q.mass || "1", stated: q.stated, tolerance: q.tolerance || String(DEFAULT_NFE_TOLERANCE_EV) };
+  // An unknown unit ("eVV", "A") is refused at the period, never read as Å: that would put the check off by the factor.
+  const unitKnown = q.unit === "" || Object.hasOwn(PERIOD_UNITS, q.unit);
+  const unit: PeriodUnit = unitKnown && q.unit !== "" ? (q.unit as PeriodUnit) : "angstrom";
+  const values: NfeFormValues = { period: q.period, unit, coefficients, gap: q.gap || "1", mass: q.mass || "1", stated: q.stated, tolerance: q.tolerance || String(DEFAULT_NFE_TOLERANCE_EV) };
   const errors: NfeFormErrors = {};
 
   let periodAngstrom: number | undefined;
-  if (!values.period) errors.period = "Enter the period a.";
+  if (!unitKnown) errors.period = `“${q.unit}” is not a unit of the period: choose Å or nm.`;
+  else if (!values.period) errors.period = "Enter the period a.";
   else {
     const scale = PERIOD_UNITS[values.unit];
     const p = numberIn(values.period, Number.MIN_VALUE, 100 / scale, `The period lies between 0 and ${values.unit === "nm" ? "10 nm" : "100 Å"}.`);

@@ -5,7 +5,7 @@ import { db } from "../db/client";
 import { familyLeads, proposals, quantities, users } from "../db/schema";
 import type { CurrentUser } from "../permissions";
 import { isRegistryError } from "../registry/errors";
-import type { Tx } from "../registry/executor";
+import type { Executor, Tx } from "../registry/executor";
 import { appendRevision, createRecordWithRevision, retireRecord } from "../registry/records";
 import { ensureSource } from "../registry/sources";
 import { loadProposalCatalogue } from "./catalogue";
@@ -36,10 +36,13 @@ function formatWhen(d: Date | null): string {
   return d ? `${d.toISOString().slice(0, 16).replace("T", " ")} UTC` : "";
 }
 
-/** Why a proposal that is no longer submitted cannot be decided, naming who decided it. */
-async function notDecidableError(row: Pick<ProposalRow, "id" | "state" | "decidedBy" | "decidedAt">): Promise<WorkflowError> {
+/**
+ * Why a proposal that is no longer submitted cannot be decided, naming who decided it. Inside the transaction it
+ * reads through `tx`: a second pool connection per waiting transaction starves the pool under many deciders at once.
+ */
+async function notDecidableError(ex: Executor, row: Pick<ProposalRow, "id" | "state" | "decidedBy" | "decidedAt">): Promise<WorkflowError> {
   if (row.state === "approved" || row.state === "rejected") {
-    const [who] = row.decidedBy ? await db().select({ name: users.name }).from(users).where(eq(users.id, row.decidedBy)) : [];
+    const [who] = row.decidedBy ? await ex.select({ name: users.name }).from(users).where(eq(users.id, row.decidedBy)) : [];
     return new WorkflowError("already_decided", `This proposal was already ${row.state} by ${who?.name ?? "another lead"} (${formatWhen(row.decidedAt)}); a decided proposal is not decided again.`);
   }
   if (row.state === "withdrawn") return new WorkflowError("state", "Its author withdrew this proposal; there is nothing to decide.");
@@ -75,7 +78,7 @@ export async function decideProposal(actor: Actor, id: number, input: DecisionIn
         const facts = await loadOneFact(tx, id);
         if (!facts) throw new WorkflowError("not_found", "There is no such proposal.");
         const row = facts.row;
-        if (row.state !== "submitted") throw await notDecidableError(row);
+        if (row.state !== "submitted") throw await notDecidableError(tx, row);
         if (row.authorId === actor.id) throw new WorkflowError("own_proposal", "You wrote this proposal: another lead of the family decides it (four-eyes rule).");
         if (!facts.material || !(await mayDecide(tx, actor.id, facts.material.familyId))) {
           throw new WorkflowError("forbidden", `Only a lead of ${facts.material?.familyName ?? "the material's family"} or an admin decides this proposal.`);
@@ -106,7 +109,7 @@ export async function decideProposal(actor: Actor, id: number, input: DecisionIn
       if (e instanceof LostRace || isRetryable(e)) {
         const [now] = await db().select().from(proposals).where(eq(proposals.id, id));
         if (!now) throw new WorkflowError("not_found", "There is no such proposal.");
-        if (now.state !== "submitted") throw await notDecidableError(now);
+        if (now.state !== "submitted") throw await notDecidableError(db(), now);
         if (now.version !== input.version) throw new WorkflowError("changed", "The proposal changed since you opened it (its author rebased it); look at it again before you decide.");
         if (attempt < 5) continue;
         throw new WorkflowError("changed", "The proposal is being changed right now; try again in a moment.");

@@ -97,6 +97,12 @@ export const records = mysqlTable("records", {
   index("records_quantity_order").on(t.quantityId, t.status, t.sortMaterial, t.valley, t.composition, t.temperatureK),
   index("records_temperature_order").on(t.status, t.temperatureK, t.sortMaterial, t.quantitySort, t.valley, t.composition),
   index("records_source").on(t.currentSourceId),
+  // Keyset pages of the API (id order after a cursor, InnoDB appends the id to every secondary index) and the
+  // registry's value sort within a family: each reads in index order and stops at the page.
+  index("records_family_keyset").on(t.familyId, t.status),
+  index("records_material_keyset").on(t.materialId, t.status),
+  index("records_status_keyset").on(t.status),
+  index("records_family_value").on(t.familyId, t.status, t.currentValueNumeric),
 ]);
 
 export type PotentialCoefficient = { n: number; valueEv: string };
