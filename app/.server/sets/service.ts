@@ -152,6 +152,7 @@ export async function writeRelease(
     items,
   };
   const out = await serialiseRelease(content);
+  await requireFitsOnePacket(tx, input, out.json, out.csv, items.length);
   let releaseId: number;
   try {
     [{ id: releaseId }] = await tx
@@ -176,6 +177,22 @@ export async function writeRelease(
   }
   if (items.length) await tx.insert(releaseItems).values(items.map((i) => ({ releaseId, recordId: i.recordId, revisionId: i.revisionId })));
   return { releaseId, number: input.number, sha256: out.sha256, csvSha256: out.csvSha256, itemCount: items.length, frozenAt };
+}
+
+// The bytes as they travel in the INSERT: quotes, backslashes and control characters are escaped.
+const escapedBytes = (text: string) => Buffer.byteLength(text) + (text.match(/[\0\b\t\n\r\x1a"'\\]/g)?.length ?? 0);
+
+/**
+ * A release is one INSERT of its JSON and CSV; over the server's max_allowed_packet the server drops the connection,
+ * which looks like a database outage. Refuse it with its size instead.
+ */
+async function requireFitsOnePacket(tx: Tx, input: { set: { name: string }; number: number }, json: string, csv: string, itemCount: number): Promise<void> {
+  const [rows] = (await tx.execute(sql`SELECT @@max_allowed_packet AS max`)) as unknown as [{ max: number | string }[]];
+  const limit = Number(rows[0].max) - 64 * 1024;
+  const size = escapedBytes(json) + escapedBytes(csv);
+  if (size <= limit) return;
+  const mib = (n: number) => (n / 1048576).toFixed(1);
+  throw new SetError("invalid", `Release ${input.number} of ${input.set.name} would be ${mib(size)} MiB (${itemCount} values); the database takes at most ${mib(limit)} MiB in one release. Split the set into smaller sets, or raise the database's max_allowed_packet.`);
 }
 
 async function nextReleaseNumber(tx: Tx, setId: number): Promise<number> {
