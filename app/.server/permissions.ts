@@ -38,7 +38,19 @@ export async function loadUser(userId: number): Promise<CurrentUser | null> {
   return row ? toCurrentUser(row) : null;
 }
 
-export async function getOptionalUser(request: Request): Promise<CurrentUser | null> {
+// The root loader and the page's loader both ask for the user of one request: ask the database once.
+const usersOfRequests = new WeakMap<Request, Promise<CurrentUser | null>>();
+
+export function getOptionalUser(request: Request): Promise<CurrentUser | null> {
+  let user = usersOfRequests.get(request);
+  if (!user) {
+    user = readOptionalUser(request);
+    usersOfRequests.set(request, user);
+  }
+  return user;
+}
+
+async function readOptionalUser(request: Request): Promise<CurrentUser | null> {
   const session = await getSession(request);
   const userId = session.get("userId");
   if (!userId) return null;

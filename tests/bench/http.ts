@@ -37,7 +37,9 @@ async function prepare(revisions: number) {
   const name = `bandledger_test_bench_${revisions}_${process.pid}`;
   const url = await createDatabase(base, name);
   await runMigrations(url);
-  const summary = await generateSyntheticRegistry(url, { revisions });
+  // At least SET_SIZE records at every size (one revision each at 1,000), so the frozen set and a filtered page
+  // hold the same number of values in both runs and the growth ratio compares like with like.
+  const summary = await generateSyntheticRegistry(url, { revisions, revisionsPerRecord: Math.max(1, Math.min(3, Math.floor(revisions / SET_SIZE))) });
   const conn = await mysql.createConnection({ uri: url });
   const [[admin]] = (await conn.query("SELECT id FROM users WHERE role = 'admin' AND active = 1 ORDER BY id LIMIT 1")) as unknown as [{ id: number }[]];
   // A frozen set of SET_SIZE values, written through the product's own freeze service below.
