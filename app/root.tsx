@@ -7,10 +7,16 @@ import { FlashMessage } from "./components/flash-message";
 import { useNonce } from "./components/nonce";
 import { databaseAvailable, databaseLossAs503 } from "./.server/db/health";
 import { getOptionalUser } from "./.server/permissions";
+import { withSecurityHeaders } from "./.server/security-headers";
 import { commitSession, getSession } from "./.server/session";
 import "./app.css";
+import { config as zodConfig } from "zod/v4/core";
 
-export const middleware: Route.MiddlewareFunction[] = [(_, next) => databaseLossAs503(next)];
+// zod probes `new Function("")` once to pick a faster parser; under our CSP (no 'unsafe-eval') that probe is a
+// violation report on every page that checks a form. In the browser it uses the plain parser from the start.
+if (typeof document !== "undefined") zodConfig({ jitless: true });
+
+export const middleware: Route.MiddlewareFunction[] = [(_, next) => withSecurityHeaders(next), (_, next) => databaseLossAs503(next)];
 
 export async function loader({ request }: Route.LoaderArgs) {
   if (!(await databaseAvailable())) {

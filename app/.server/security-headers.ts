@@ -35,3 +35,21 @@ export function applySecurityHeaders(headers: Headers, nonce?: string): Headers 
   }
   return headers;
 }
+
+// What a response that is not our rendered HTML may do in a browser: nothing (API JSON, downloads, health).
+const NOTHING_RUNS = "default-src 'none'; frame-ancestors 'none'; base-uri 'none'; form-action 'none'";
+
+/**
+ * Root middleware: resource routes (the API, downloads, /healthz) bypass entry.server, so without this their
+ * answers carried none of the headers above. Rendered pages already have them, with their nonce; they keep it.
+ */
+export async function withSecurityHeaders(next: () => Promise<Response>): Promise<Response> {
+  const response = await next();
+  try {
+    if (!response.headers.has("Content-Security-Policy")) response.headers.set("Content-Security-Policy", NOTHING_RUNS);
+    applySecurityHeaders(response.headers);
+  } catch {
+    // A response with immutable headers (one fetched from elsewhere) is passed on as it is.
+  }
+  return response;
+}

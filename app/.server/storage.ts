@@ -117,12 +117,12 @@ function utf8Strict(bytes: Uint8Array): boolean {
  * well-formed form (broken multipart, bytes that are not UTF-8) a 400; both thrown as a page with the reason.
  */
 export async function readLimitedFormData(request: Request, maxBytes: number): Promise<FormData> {
+  const declared = Number(request.headers.get("content-length") ?? "0");
+  if (declared > maxBytes) throw new StorageError("too_large", `The upload is ${formatBytes(declared)}; at most ${formatBytes(maxBytes)} is taken.`);
   const type = request.headers.get("content-type");
   if (type !== null && !FORM_TYPE.test(type)) {
     unreadableForm(415, `This address takes a form (application/x-www-form-urlencoded or multipart/form-data), not ${type.split(";")[0].trim().slice(0, 60) || "an empty content type"}.`);
   }
-  const declared = Number(request.headers.get("content-length") ?? "0");
-  if (declared > maxBytes) throw new StorageError("too_large", `The upload is ${formatBytes(declared)}; at most ${formatBytes(maxBytes)} is taken.`);
   if (!request.body) return new FormData();
   const chunks: Uint8Array[] = [];
   let total = 0;
@@ -138,6 +138,8 @@ export async function readLimitedFormData(request: Request, maxBytes: number): P
     chunks.push(value);
   }
   const body = Buffer.concat(chunks);
+  // Bytes that do not say what they are are not read as a form: no browser sends a form without its type.
+  if (type === null && body.length > 0) unreadableForm(415, "This address takes a form (application/x-www-form-urlencoded or multipart/form-data); the request did not say what it sent.");
   const contentType = type ?? "application/x-www-form-urlencoded";
   const multipart = /^\s*multipart\//i.test(contentType);
   if (!multipart && !urlEncodedIsUtf8(body)) unreadableForm(400, "The form is not well-formed UTF-8 (a raw byte or a %-escape is broken); send it again from the page.");

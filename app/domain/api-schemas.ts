@@ -254,12 +254,12 @@ const SLUG = /^[a-z0-9]+(?:-[a-z0-9]+)*$/;
 
 /** A new set as typed on /sets/new. */
 export const setInputSchema = z.object({
-  name: z.string().trim().min(2, "Give the set a name of at least two characters.").max(120, "Keep the name under 120 characters."),
+  name: z.string({ error: "Give the set a name of at least two characters." }).trim().min(2, "Give the set a name of at least two characters.").max(120, "Keep the name under 120 characters."),
   slug: z.preprocess(
     (v) => (typeof v === "string" && v.trim() === "" ? undefined : v),
     z.string().trim().toLowerCase().max(80, "Keep the short name under 80 characters.").regex(SLUG, "Use lower-case letters, digits and single dashes.").optional(),
   ),
-  purpose: z.string().trim().min(3, "Say what the set is for, e.g. the simulation it feeds.").max(200, "Keep the purpose under 200 characters."),
+  purpose: z.string({ error: "Say what the set is for, e.g. the simulation it feeds." }).trim().min(3, "Say what the set is for, e.g. the simulation it feeds.").max(200, "Keep the purpose under 200 characters."),
   description: z.preprocess((v) => (typeof v === "string" && v.trim() === "" ? undefined : v), z.string().trim().max(4000, "Keep the description under 4000 characters.").optional()),
 });
 export type SetInput = z.infer<typeof setInputSchema>;

@@ -305,7 +305,7 @@ export const commentSchema = z.object({
 
 /** A lead's decision: a rejection always says why. */
 export const decisionSchema = z.discriminatedUnion("decision", [
-  z.object({ decision: z.literal("approve"), version: z.coerce.number().int().positive(), reason: z.string().trim().max(4000).optional() }),
+  z.object({ decision: z.literal("approve"), version: z.coerce.number().int().positive(), reason: z.string().trim().max(4000, "At most 4000 characters.").optional() }),
   z.object({
     decision: z.literal("reject"),
     version: z.coerce.number().int().positive(),

@@ -65,12 +65,14 @@ export const compareSchema = z.object({
   to: positiveId.optional().catch(undefined),
 });
 
-const optionalText = (max: number) => z.preprocess(blankToUndefined, z.string().trim().max(max).optional());
+// Every cap with a message a person reads in the form, the CSV preview and the API.
+const atMost = (max: number) => `At most ${max} characters.`;
+const optionalText = (max: number) => z.preprocess(blankToUndefined, z.string().trim().max(max, atMost(max)).optional());
 
 /** A revision as typed in a form, a CSV row or an API call: every number a string, converted exactly later. */
 export const revisionInputSchema = z.object({
-  value: z.string().trim().min(1, "Enter the value.").max(64),
-  unit: z.string().trim().max(20).default(""),
+  value: z.string().trim().min(1, "Enter the value.").max(64, atMost(64)),
+  unit: z.string().trim().max(20, atMost(20)).default(""),
   uncertainty: optionalText(64),
   method: z.enum(METHOD_KEYS, { message: "Choose how the value was obtained." }),
   sourceId: positiveId,
@@ -227,13 +229,13 @@ export const sourceInputSchema = z.discriminatedUnion("kind", [
       }
       return r.doi;
     }),
-    title: z.string().trim().min(1, "Enter the title.").max(500),
+    title: z.string().trim().min(1, "Enter the title.").max(500, atMost(500)),
     authors: optionalText(500),
     year: z.preprocess(blankToUndefined, z.coerce.number().int().min(1800).max(2100).optional()),
   }),
   z.object({
     kind: z.literal("bibtex"),
-    bibtex: z.string().trim().min(1, "Paste a BibTeX entry.").max(20_000),
+    bibtex: z.string().trim().min(1, "Paste a BibTeX entry.").max(20_000, atMost(20_000)),
   }),
   z.object({
     kind: z.literal("report"),
@@ -245,7 +247,7 @@ export const sourceInputSchema = z.discriminatedUnion("kind", [
       }
       return r.reportNumber;
     }),
-    title: z.string().trim().min(1, "Enter the title.").max(500),
+    title: z.string().trim().min(1, "Enter the title.").max(500, atMost(500)),
     authors: optionalText(500),
     year: z.preprocess(blankToUndefined, z.coerce.number().int().min(1800).max(2100).optional()),
   }),

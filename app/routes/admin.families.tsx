@@ -31,7 +31,12 @@ export async function action({ request }: Route.ActionArgs) {
   }
   if (intent === "rename") {
     const parsed = familyRenameInput.safeParse(values);
-    if (!parsed.success) return fail(fieldErrors(parsed.error), Number(values.familyId) || null);
+    if (!parsed.success) {
+      const errors = fieldErrors(parsed.error);
+      // No row shows a message for a family id we never handed out: the page says it at the top.
+      if (errors.familyId) return fail({ form: "Reload the page and try again: that family is not in the list." });
+      return fail(errors, Number(values.familyId) || null);
+    }
     const result = await renameFamily(admin, parsed.data, request);
     if (!result.ok) return fail(result.errors, parsed.data.familyId);
     return redirectWithFlash(request, "/admin/families", { kind: "ok", message: result.notice ?? "Renamed." });
@@ -45,6 +50,7 @@ export default function AdminFamilies({ loaderData, actionData }: Route.Componen
   return (
     <section className="space-y-6" aria-labelledby="families-title">
       <h1 id="families-title" className="text-2xl font-semibold tracking-tight">Material families</h1>
+      {actionData?.errors.form ? <p role="alert" className="rounded-[var(--radius-card)] border border-fail px-3 py-2 text-sm text-fail" data-testid="form-error">{actionData.errors.form}</p> : null}
       <p className="text-sm text-muted">Every material belongs to one family; the leads of a family approve the proposals for its records. The key appears in addresses and never changes; the name can.</p>
 
       <Form key={loaderData.families.length} method="post" className="card grid gap-4 p-5 md:grid-cols-[10rem_1fr_1.4fr_auto]" noValidate aria-labelledby="create-family-title">

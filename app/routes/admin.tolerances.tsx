@@ -44,6 +44,12 @@ export default function AdminTolerances({ loaderData, actionData }: Route.Compon
           Every change is written to the audit log.
         </p>
       </div>
+      {actionData && !loaderData.tolerances.some((t) => t.quantityKey === actionData.values.quantity) ? (
+        // A quantity no row shows: its message has no field to stand at.
+        <p role="alert" className="rounded-[var(--radius-card)] border border-fail px-3 py-2 text-sm text-fail" data-testid="form-error">
+          {actionData.errors.quantity ?? actionData.errors.tolerance ?? Object.values(actionData.errors)[0]}
+        </p>
+      ) : null}
       <div className="card overflow-x-auto">
         <table className="w-full text-left text-sm">
           <thead className="text-xs text-muted uppercase">

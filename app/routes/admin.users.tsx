@@ -36,14 +36,18 @@ export async function action({ request }: Route.ActionArgs) {
   }
   if (intent === "role") {
     const parsed = roleChangeInput.safeParse(values);
-    if (!parsed.success) return fail({ row: Object.values(fieldErrors(parsed.error))[0] }, Number(values.userId) || null);
+    if (!parsed.success) {
+      const errors = fieldErrors(parsed.error);
+      if (errors.userId || errors.version) return fail({ form: "Reload the page and try again: that person or version is not one this page showed." });
+      return fail({ row: Object.values(errors)[0] }, Number(values.userId) || null);
+    }
     const result = await changeRole(admin, parsed.data, request);
     if (!result.ok) return fail(result.errors, parsed.data.userId);
     return redirectWithFlash(request, "/admin/users", { kind: "ok", message: result.notice ?? "Saved." });
   }
   if (intent === "deactivate" || intent === "reactivate") {
     const parsed = userChangeInput.safeParse(values);
-    if (!parsed.success) return fail({ row: "Reload the page and try again." }, Number(values.userId) || null);
+    if (!parsed.success) return fail({ form: "Reload the page and try again." });
     const result = await setActive(admin, { ...parsed.data, active: intent === "reactivate" }, request);
     if (!result.ok) return fail(result.errors, parsed.data.userId);
     return redirectWithFlash(request, "/admin/users", { kind: "ok", message: result.notice ?? "Saved." });
@@ -62,6 +66,7 @@ export default function AdminUsers({ loaderData, actionData }: Route.ComponentPr
   return (
     <section className="space-y-6" aria-labelledby="users-title">
       <h1 id="users-title" className="text-2xl font-semibold tracking-tight">People</h1>
+      {actionData?.errors.form ? <p role="alert" className="rounded-[var(--radius-card)] border border-fail px-3 py-2 text-sm text-fail" data-testid="form-error">{actionData.errors.form}</p> : null}
 
       <Form key={loaderData.users.length} method="post" className="card grid gap-4 p-5 md:grid-cols-[1.3fr_1fr_10rem_auto]" noValidate aria-labelledby="invite-title">
         <h2 id="invite-title" className="font-semibold md:col-span-4">Invite someone</h2>

@@ -36,7 +36,8 @@ export async function loader({ request }: Route.LoaderArgs) {
   const page = runNfePage(new URL(request.url).searchParams);
   const body = { ...page, maxRows: NFE_MAX_ROWS, examples: EXAMPLES.map((e) => ({ label: e.label, hint: e.hint, query: nfeQueryOf(e.values).toString() })) };
   // A query with wrong inputs is a bad request: the page shows the messages at their fields with a 400.
-  return data(body, { status: Object.keys(page.errors).length ? 400 : 200 });
+  const live = new URL(request.url).searchParams.get("live") === "1";
+  return data(body, { status: Object.keys(page.errors).length && !live ? 400 : 200 });
 }
 
 const DEBOUNCE_MS = 300;
@@ -150,6 +151,8 @@ export default function NfeCheckPage({ loaderData }: Route.ComponentProps) {
       if (!formRef.current) return;
       const params = new URLSearchParams();
       for (const [k, v] of new FormData(formRef.current).entries()) if (typeof v === "string") params.append(k, v);
+      // live=1: a check while typing answers its messages with a 200, so the console does not log every keystroke as a failed request.
+      params.set("live", "1");
       void fetcher.load(`/checks/nfe?${params.toString()}`);
     }, DEBOUNCE_MS);
   };

@@ -57,7 +57,11 @@ export async function action({ request, params }: Route.ActionArgs) {
       if (familyId === null) throw data({ message: "There is no such proposal." }, { status: 404 });
       const lead = await requireLeadOf(request, familyId);
       const parsed = decisionSchema.safeParse({ decision: intent, version: text("version"), reason: text("reason") });
-      if (!parsed.success) return fail(intent, 400, null, fieldErrorsOf(parsed.error), { reason: text("reason") });
+      if (!parsed.success) {
+        const errors = fieldErrorsOf(parsed.error);
+        // The version is a hidden field: when it is not one we handed out, the page says so (it shows no field for it).
+        return fail(intent, 400, errors.version ? "Reload the page and try again: the form did not say which version of the proposal it decides on." : null, errors, { reason: text("reason") });
+      }
       const done = await decideProposal(lead, id, parsed.data, request);
       return redirectWithFlash(request, `/proposals/${id}`, {
         kind: "ok",

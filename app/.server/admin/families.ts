@@ -7,17 +7,17 @@ import type { CurrentUser } from "../permissions";
 import type { Outcome } from "./users";
 
 export const familyCreateInput = z.object({
-  key: z.string().trim().toLowerCase()
+  key: z.string({ error: "Enter a short key, e.g. arsenides." }).trim().toLowerCase()
     .min(1, "Enter a short key, e.g. arsenides.")
     .max(40, "Keep the key under 40 characters.")
     .regex(/^[a-z0-9]+(-[a-z0-9]+)*$/, "Use lower-case letters, digits and single hyphens, e.g. group-iv."),
-  name: z.string().trim().min(1, "Enter the family's name.").max(120, "Keep the name under 120 characters."),
+  name: z.string({ error: "Enter the family's name." }).trim().min(1, "Enter the family's name.").max(120, "Keep the name under 120 characters."),
   description: z.string().trim().max(2000, "Keep the description under 2000 characters.").optional().transform((s) => s || null),
 });
 
 export const familyRenameInput = z.object({
   familyId: z.coerce.number().int().positive(),
-  name: z.string().trim().min(1, "Enter the family's name.").max(120, "Keep the name under 120 characters."),
+  name: z.string({ error: "Enter the family's name." }).trim().min(1, "Enter the family's name.").max(120, "Keep the name under 120 characters."),
 });
 
 export type FamilyRow = { id: number; key: string; name: string; description: string | null; leads: { id: number; name: string }[] };

@@ -12,8 +12,8 @@ export type FieldErrors = Record<string, string>;
 export type Outcome<T = void> = { ok: true; value: T; notice?: string } | { ok: false; errors: FieldErrors };
 
 export const inviteInput = z.object({
-  email: z.string().trim().toLowerCase().min(1, "Enter the address to invite.").pipe(z.email("Enter an e-mail address such as name@example.com.").max(254, "That address is too long.")),
-  name: z.string().trim().min(1, "Enter the person's name.").max(120, "Keep the name under 120 characters."),
+  email: z.string({ error: "Enter the address to invite." }).trim().toLowerCase().min(1, "Enter the address to invite.").pipe(z.email("Enter an e-mail address such as name@example.com.").max(254, "That address is too long.")),
+  name: z.string({ error: "Enter the person's name." }).trim().min(1, "Enter the person's name.").max(120, "Keep the name under 120 characters."),
   role: z.enum(ROLES, { error: "Choose one of the four roles." }),
 });
 

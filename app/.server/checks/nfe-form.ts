@@ -68,7 +68,7 @@ function numberIn(raw: string, min: number, max: number, outside: string): { val
 
 /** Reads the check's query string; an empty one is the worked example. */
 export function readNfeQuery(params: URLSearchParams): { values: NfeFormValues; errors: NfeFormErrors; input: Parameters<typeof checkNfeGap>[0] | null } {
-  if (![...params.keys()].some((k) => k !== "rows")) return readNfeQuery(nfeQueryOf(NFE_EXAMPLE));
+  if (![...params.keys()].some((k) => k !== "rows" && k !== "live")) return readNfeQuery(nfeQueryOf(NFE_EXAMPLE));
   const q = querySchema.parse(Object.fromEntries(params));
   const ns = params.getAll("n").map((s) => s.trim().slice(0, 40));
   const us = params.getAll("u").map((s) => s.trim().slice(0, 40));
