@@ -111,6 +111,12 @@ describe("registry endpoints", () => {
   it("GET /api/v1/materials and /api/v1/quantities", async () => {
     const m = parse(materialListSchema, await reader("/api/v1/materials"));
     expect(m.materials.find((x) => x.key === "AlGaAs")).toMatchObject({ kind: "alloy", formula: "Al(x)Ga(1-x)As", family: { key: "arsenides" } });
+    // activeRecords is each material's own count of active records, not a constant.
+    const [counts] = (await demo.t.pool.query(
+      "SELECT m.`key` AS k, COUNT(r.id) AS n FROM materials m LEFT JOIN records r ON r.material_id = m.id AND r.status = 'active' GROUP BY m.id",
+    )) as unknown as [{ k: string; n: number | string }[]];
+    expect(Object.fromEntries(m.materials.map((x) => [x.key, x.activeRecords]))).toEqual(Object.fromEntries(counts.map((c) => [c.k, Number(c.n)])));
+    expect(new Set(counts.map((c) => Number(c.n))).size).toBeGreaterThan(1);
     const q = parse(quantityListSchema, await reader("/api/v1/quantities"));
     expect(q.quantities.find((x) => x.key === "eg")).toMatchObject({ canonicalUnit: "eV", acceptedUnits: ["eV", "meV", "µeV"], dependsOnValley: true });
     expect(q.quantities.map((x) => x.key)).not.toContain("potential_un");

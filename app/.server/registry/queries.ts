@@ -538,7 +538,7 @@ export type FamilyWithMaterials = {
 
 /** Material families in name order, each with its materials and how many active records they have. */
 export async function listMaterialsByFamily(ex: Executor): Promise<FamilyWithMaterials[]> {
-  const [families, mats] = await Promise.all([
+  const [families, mats, counts] = await Promise.all([
     ex.select().from(materialFamilies).orderBy(asc(materialFamilies.name)),
     ex
       .select({
@@ -550,16 +550,18 @@ export async function listMaterialsByFamily(ex: Executor): Promise<FamilyWithMat
         structure: materials.structure,
         compositionVariable: materials.compositionVariable,
         familyId: materials.familyId,
-        activeRecords: sql<number>`(SELECT COUNT(*) FROM ${records} WHERE ${records.materialId} = ${materials.id} AND ${records.status} = 'active')`,
       })
       .from(materials)
       .orderBy(asc(materials.kind), asc(materials.key)),
+    // Counted apart and matched by id: a correlated subquery here came out with unqualified columns.
+    ex.select({ materialId: records.materialId, n: count() }).from(records).where(eq(records.status, "active")).groupBy(records.materialId),
   ]);
+  const activeOf = new Map(counts.map((c) => [c.materialId, Number(c.n)]));
   return families.map((f) => ({
     key: f.key,
     name: f.name,
     description: f.description,
-    materials: mats.filter((m) => m.familyId === f.id).map(({ familyId: _familyId, ...m }) => ({ ...m, activeRecords: Number(m.activeRecords) })),
+    materials: mats.filter((m) => m.familyId === f.id).map(({ familyId: _familyId, ...m }) => ({ ...m, activeRecords: activeOf.get(m.id) ?? 0 })),
   }));
 }
 
