@@ -20,17 +20,19 @@ export function hasRole(user: Pick<CurrentUser, "role">, role: Role): boolean {
   return RANK[user.role] >= RANK[role];
 }
 
-// The user and the families they lead, in one round trip: every signed-in page and API call asks.
+// The user and the families they lead, in one round trip: every signed-in page and API call asks. The subquery
+// names its tables itself: in a one-table select the ORM writes columns unqualified, and `id` would then mean
+// whichever table has one.
 export const currentUserColumns = {
   id: users.id,
   email: users.email,
   name: users.name,
   role: users.role,
-  leads: sql<string | null>`(SELECT GROUP_CONCAT(${familyLeads.familyId}) FROM ${familyLeads} WHERE ${familyLeads.userId} = ${users.id})`,
+  leads: sql<string | null>`(SELECT GROUP_CONCAT(fl.family_id ORDER BY fl.family_id) FROM ${familyLeads} fl WHERE fl.user_id = ${users}.id)`,
 };
 
 export function toCurrentUser(row: { id: number; email: string; name: string; role: Role; leads: string | null }): CurrentUser {
-  return { id: row.id, email: row.email, name: row.name, role: row.role, leadFamilyIds: row.leads ? row.leads.split(",").map(Number).sort((a, b) => a - b) : [] };
+  return { id: row.id, email: row.email, name: row.name, role: row.role, leadFamilyIds: row.leads ? row.leads.split(",").map(Number) : [] };
 }
 
 export async function loadUser(userId: number): Promise<CurrentUser | null> {

@@ -168,7 +168,10 @@ describe("material families and lead assignments", () => {
     const twice = await admin.post("/admin/leads", { intent: "assign", userId: String(ids.hanna), familyId: String(antimonides.id) });
     expect(await twice.text()).toContain("already leads");
     const hanna = await HttpClient.signedIn(app.url, ids.hanna);
-    expect((await (await hanna.get("/api/v1/whoami")).json()).user.leadFamilyIds).toContain(antimonides.id);
+    // Exactly the families family_leads holds for her, in id order: not another person's, not a constant.
+    const held = (await t.db.select({ f: familyLeads.familyId }).from(familyLeads).where(eq(familyLeads.userId, ids.hanna))).map((r) => r.f).sort((a, b) => a - b);
+    expect(held.length).toBeGreaterThan(1);
+    expect((await (await hanna.get("/api/v1/whoami")).json()).user.leadFamilyIds).toEqual(held);
 
     expect((await admin.post("/admin/leads", { intent: "unassign", userId: String(ids.hanna), familyId: String(antimonides.id) })).status).toBe(302);
     expect(await t.db.select().from(familyLeads).where(and(eq(familyLeads.userId, ids.hanna), eq(familyLeads.familyId, antimonides.id)))).toEqual([]);
