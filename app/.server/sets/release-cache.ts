@@ -6,7 +6,6 @@ import { requireRelease, requireSet } from "./queries";
 export type ServedRelease = {
   id: number;
   slug: string;
-  number: number;
   sha256: string;
   files: Record<ReleaseFormat, { bytes: Uint8Array<ArrayBuffer>; etag: string; reprDigest: string }>;
 };
@@ -38,10 +37,12 @@ export async function servedRelease(slug: string, number: number): Promise<Serve
   const served: ServedRelease = {
     id: release.id,
     slug: set.slug,
-    number,
     sha256: release.sha256,
     files: { json: file(release.canonicalJson, release.sha256), csv: file(release.csv, release.csvSha256) },
   };
+  // Concurrent first downloads each read it; the first to finish is kept, so its size is counted once.
+  const raced = cache.get(key);
+  if (raced) return raced;
   const size = sizeOf(served);
   if (size > MAX_BYTES) return served;
   cache.set(key, served);
