@@ -9,8 +9,8 @@ import { databaseAvailable, databaseLossAs503 } from "./.server/db/health";
 import { getOptionalUser } from "./.server/permissions";
 import { withSecurityHeaders } from "./.server/security-headers";
 import { commitSession, getSession } from "./.server/session";
-import "./app.css";
 import { config as zodConfig } from "zod/v4/core";
+import "./app.css";
 
 // zod probes `new Function("")` once to pick a faster parser; under our CSP (no 'unsafe-eval') that probe is a
 // violation report on every page that checks a form. In the browser it uses the plain parser from the start.

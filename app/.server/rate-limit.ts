@@ -40,7 +40,7 @@ export async function reserveSignInRequest(email: string, ip: string): Promise<R
   return { ok: false, retryAt: new Date(Date.now() + Math.max(0, ...waits)) };
 }
 
-// Fixed-window counters in rate_counters, for failures that must add up across requests (wrong codes, later API limits).
+// Fixed-window counters in rate_counters, for failures that must add up across requests and processes (wrong codes).
 export async function countHit(bucket: string, windowSeconds: number): Promise<number> {
   await db().execute(sql`
     INSERT INTO rate_counters (bucket, window_start, \`count\`) VALUES (${bucket}, NOW(3), 1)

@@ -33,10 +33,11 @@ const EXAMPLES: { label: string; hint: string; values: NfeFormValues }[] = [
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request);
-  const page = runNfePage(new URL(request.url).searchParams);
+  const params = new URL(request.url).searchParams;
+  const page = runNfePage(params);
   const body = { ...page, maxRows: NFE_MAX_ROWS, examples: EXAMPLES.map((e) => ({ label: e.label, hint: e.hint, query: nfeQueryOf(e.values).toString() })) };
   // A query with wrong inputs is a bad request: the page shows the messages at their fields with a 400.
-  const live = new URL(request.url).searchParams.get("live") === "1";
+  const live = params.get("live") === "1";
   return data(body, { status: Object.keys(page.errors).length && !live ? 400 : 200 });
 }
 
