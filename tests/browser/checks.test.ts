@@ -4,7 +4,7 @@ import type { BrowserContext, Locator, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
 import { createPool } from "~/.server/db/client";
 import * as schema from "~/.server/db/schema";
-import { artifactPath, launchBrowser } from "../support/browser";
+import { artifactPath, launchBrowser, expectVisible } from "../support/browser";
 import { HttpClient } from "../support/route-access";
 import { signInAs } from "../support/session";
 
@@ -60,7 +60,7 @@ describe("the nearly-free-electron check page", () => {
       if (m.type() === "error") errors.push(m.text());
     });
     await page.goto(`${appUrl}/checks/nfe`);
-    await expect(page.getByRole("heading", { name: "Nearly-free-electron check" }).isVisible()).resolves.toBe(true);
+    await expectVisible(page.getByRole("heading", { name: "Nearly-free-electron check" }));
     // The first visit opens on the two-band example: U_1 = 0.1 eV, no stated gap yet.
     await expect(verdictOf(page)).resolves.toBe("none");
     await expect(page.locator("svg[role=img] title").first().textContent()).resolves.toMatch(/^E\(k\) in the reduced zone/);
@@ -70,12 +70,12 @@ describe("the nearly-free-electron check page", () => {
     await page.getByLabel("Stated gap (eV)").fill("0.2");
     await page.waitForSelector('[data-nfe-result="pass"]');
     expect(page.url()).toBe(before);
-    await expect(page.getByText("first order, 2|U_n|").isVisible()).resolves.toBe(true);
+    await expectVisible(page.getByText("first order, 2|U_n|"));
     await shoot(page, "checks-nfe-pass");
 
     await page.getByLabel("Stated gap (eV)").fill("0.1");
     await page.waitForSelector('[data-nfe-result="fail"]');
-    await expect(page.getByText(/half the computed one/).isVisible()).resolves.toBe(true);
+    await expectVisible(page.getByText(/half the computed one/));
     expect(page.url()).toBe(before);
 
     await page.getByLabel("Period a").fill("0");
@@ -101,7 +101,7 @@ describe("the nearly-free-electron check page", () => {
     await page.getByRole("button", { name: "Check", exact: true }).click();
     await page.waitForURL(/u=0\.0250/);
     await page.locator('[data-nfe-result="warn"]').waitFor();
-    await expect(page.getByText("the stated gap matches the first-order estimate 2|U_n|, not the central equation").isVisible()).resolves.toBe(true);
+    await expectVisible(page.getByText("the stated gap matches the first-order estimate 2|U_n|, not the central equation"));
     await shoot(page, "checks-nfe-demo-potential");
     await page.close();
   });
@@ -119,7 +119,7 @@ describe("derived values on the material page", () => {
     const page = await browser.newPage();
     await page.goto(`${appUrl}/materials/GaAs`);
     const section = page.locator("section#derived");
-    await expect(section.isVisible()).resolves.toBe(true);
+    await expectVisible(section);
     await section.getByLabel("Temperature (K)").fill("77");
     await section.getByRole("button", { name: "Derive" }).click();
     await page.waitForURL(/temperature=77/);

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
 import type { BrowserContext } from "playwright-core";
-import { artifactPath, launchBrowser } from "../support/browser";
+import { artifactPath, launchBrowser, expectVisible } from "../support/browser";
 
 let browser: BrowserContext;
 beforeAll(async () => {
@@ -52,7 +52,7 @@ describe("home page in Chromium", () => {
     const page = await browser.newPage();
     const response = await page.goto(inject("appUrl") + "/no/such/page");
     expect(response?.status()).toBe(404);
-    await expect(page.getByRole("heading", { name: "Nothing is filed under this address" }).isVisible()).resolves.toBe(true);
+    await expectVisible(page.getByRole("heading", { name: "Nothing is filed under this address" }));
     await page.close();
   });
 });

@@ -6,7 +6,7 @@ import { createPool } from "~/.server/db/client";
 import * as schema from "~/.server/db/schema";
 import { materials, proposals, quantities, records, revisions, sources, users } from "~/.server/db/schema";
 import { createRecordWithRevision } from "~/.server/registry/records";
-import { artifactPath, launchBrowser } from "../support/browser";
+import { artifactPath, launchBrowser, expectVisible } from "../support/browser";
 import { readLastMail } from "../support/mailbox";
 import { signInAs } from "../support/session";
 
@@ -58,14 +58,14 @@ describe("a change from proposal to the registry, in Chromium", () => {
   it("is proposed with a citation, noticed to the lead, approved from the link, and is live with its history", async () => {
     const page = await contributor.newPage();
     await page.goto(`${appUrl}/proposals/new?record=${recordId}&kind=revision`);
-    await expect(page.getByRole("heading", { name: "Propose a new value" }).isVisible()).resolves.toBe(true);
+    await expectVisible(page.getByRole("heading", { name: "Propose a new value" }));
     await page.waitForFunction(() => Boolean((window as unknown as { __reactRouterRouteModules?: unknown }).__reactRouterRouteModules));
     await page.getByLabel("Value", { exact: true }).fill("3.00304");
     await page.getByLabel("Method").selectOption("calculated");
     await page.getByRole("textbox", { name: "DOI" }).fill("10.1063/1.1368156");
     await page.getByLabel("Title").fill("Band parameters for III–V compound semiconductors and their alloys");
     await page.getByRole("textbox", { name: "Notes" }).fill("Varshni with the [V01] parameters at 300 K, to six digits.");
-    await expect(page.getByText("Kept as 3.00304 eV, 6 significant digits.").isVisible()).resolves.toBe(true);
+    await expectVisible(page.getByText("Kept as 3.00304 eV, 6 significant digits."));
 
     // A refused submission keeps what was typed and says which field is wrong.
     await page.getByRole("button", { name: "Submit for review" }).click();
@@ -83,7 +83,7 @@ describe("a change from proposal to the registry, in Chromium", () => {
     const before = Date.now();
     await page.getByRole("button", { name: "Submit for review" }).click();
     await page.waitForURL(new RegExp(`/proposals/${draft.id}$`));
-    await expect(page.getByText("Submitted for review").isVisible()).resolves.toBe(true);
+    await expectVisible(page.getByText("Submitted for review"));
     await shoot(page, "proposal-submitted.png");
 
     const mail = await readLastMail(inject("mailboxDir"), "ravi.menon@kestrel-devices.test", { after: before });
@@ -94,12 +94,12 @@ describe("a change from proposal to the registry, in Chromium", () => {
 
     const review = await lead.newPage();
     await review.goto(`${appUrl}/review`);
-    await expect(review.getByTestId("review-queue").getByText("3.00304 eV").isVisible()).resolves.toBe(true);
+    await expectVisible(review.getByTestId("review-queue").getByText("3.00304 eV"));
     await shoot(review, "review-queue.png");
     await review.goto(link!);
     expect(await review.getByTestId("current-value").textContent()).toContain("3.003");
     expect(await review.getByTestId("proposed-value").textContent()).toContain("3.00304");
-    await expect(review.locator('[data-slot="consistency-checks"]').isVisible()).resolves.toBe(true);
+    await expectVisible(review.locator('[data-slot="consistency-checks"]'));
     await shoot(review, "proposal-review.png");
     const decided = Date.now();
     await review.getByRole("button", { name: "Approve" }).click();
@@ -140,7 +140,7 @@ describe("a change from proposal to the registry, in Chromium", () => {
     await signInAs(contributor, appUrl, ids.tomas);
     await page.goto(`${appUrl}/proposals/restore`);
     await page.waitForURL(/\/proposals\/\d+\/edit$/);
-    await expect(page.getByText("what you had typed is back in the draft").isVisible()).resolves.toBe(true);
+    await expectVisible(page.getByText("what you had typed is back in the draft"));
     expect(await page.getByLabel("Value", { exact: true }).inputValue()).toBe("6.0959");
     expect(await page.getByRole("textbox", { name: "Notes" }).inputValue()).toBe("typed before the session ended");
     await shoot(page, "proposal-restored.png");
@@ -159,7 +159,7 @@ describe("a change from proposal to the registry, in Chromium", () => {
     await page.getByTestId("csv-preview").waitFor();
     const text = await page.getByTestId("csv-preview").innerText();
     expect(text).toContain("“furlong” is not accepted here; use Å, nm, pm.");
-    await expect(page.getByText("1 problem to fix; nothing is proposed until every row is right").isVisible()).resolves.toBe(true);
+    await expectVisible(page.getByText("1 problem to fix; nothing is proposed until every row is right"));
     expect(await page.getByRole("button", { name: "Submit every row as a proposal" }).isDisabled()).toBe(true);
     await shoot(page, "csv-preview.png");
   });

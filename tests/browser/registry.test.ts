@@ -1,7 +1,7 @@
 import mysql from "mysql2/promise";
 import type { BrowserContext, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
-import { artifactPath, launchBrowser } from "../support/browser";
+import { artifactPath, launchBrowser, expectVisible } from "../support/browser";
 import { signInAs } from "../support/session";
 
 // The demo registry (seed-data/registry.ts): GaAs Eg(Γ, 300 K) = 1.4225 eV from the Varshni parameters of
@@ -70,7 +70,7 @@ describe("the registry in Chromium, as a reader", () => {
     await page.waitForURL(/q=Sze/);
     await expect.poll(() => rowTexts(page)).toSatisfy((rows: string[]) => rows.length > 0 && rows.every((r) => r.includes("Sze & Ng 2007")));
     await page.goto(`${appUrl()}/registry?q=no-such-thing-anywhere`);
-    await expect(page.getByRole("heading", { name: "No record matches these filters" }).isVisible()).resolves.toBe(true);
+    await expectVisible(page.getByRole("heading", { name: "No record matches these filters" }));
     await page.close();
   });
 
@@ -92,7 +92,7 @@ describe("the registry in Chromium, as a reader", () => {
     await page.waitForURL((u) => ["cmp", "from", "to"].every((k) => u.searchParams.has(k)));
 
     const diff = page.getByTestId("revision-diff");
-    await expect(diff.isVisible()).resolves.toBe(true);
+    await expectVisible(diff);
     await expect(diff.locator("caption").innerText()).resolves.toMatch(/Revision 1 compared with revision 3/);
     const value = diff.locator("tr", { has: page.locator("th", { hasText: /^Value/ }) });
     await expect(value.getAttribute("data-changed")).resolves.toBe("true");
@@ -116,7 +116,7 @@ describe("the registry in Chromium, as a reader", () => {
     await page.screenshot({ path: artifactPath("record-retired.png"), fullPage: true });
     const missing = await page.goto(`${appUrl()}/records/999999`);
     expect(missing?.status()).toBe(404);
-    await expect(page.getByRole("heading", { name: "Nothing is filed under this address" }).isVisible()).resolves.toBe(true);
+    await expectVisible(page.getByRole("heading", { name: "Nothing is filed under this address" }));
     await page.close();
   });
 

@@ -48,8 +48,8 @@ describe("signing in in Chromium", () => {
     await page.screenshot({ path: artifactPath("sign-in-code.png"), fullPage: true });
     await page.getByRole("button", { name: "Sign in", exact: true }).click();
     await page.waitForURL(`${appUrl}/`);
-    await expect(page.getByRole("status").textContent()).resolves.toContain("Signed in as Hanna Lindqvist");
-    await expect(page.locator("[data-slot=user]").textContent()).resolves.toContain("Hanna Lindqvist");
+    await page.getByRole("status").filter({ hasText: "Signed in as Hanna Lindqvist" }).waitFor();
+    await page.locator("[data-slot=user]").filter({ hasText: "Hanna Lindqvist" }).waitFor();
     await page.screenshot({ path: artifactPath("sign-in-done.png"), fullPage: true });
 
     await page.getByRole("button", { name: "Sign out" }).click();
