@@ -5,7 +5,7 @@ import { fieldErrors } from "~/.server/admin/users";
 import { requireRole } from "~/.server/permissions";
 import { redirectWithFlash } from "~/.server/session";
 import { readForm } from "~/.server/storage";
-import { FieldError, invalidProps } from "~/components/field-error";
+import { FieldError, FormError, invalidProps } from "~/components/field-error";
 
 export const meta: Route.MetaFunction = () => [{ title: "Material families · Admin · Bandledger" }];
 
@@ -50,7 +50,7 @@ export default function AdminFamilies({ loaderData, actionData }: Route.Componen
   return (
     <section className="space-y-6" aria-labelledby="families-title">
       <h1 id="families-title" className="text-2xl font-semibold tracking-tight">Material families</h1>
-      {actionData?.errors.form ? <p role="alert" className="rounded-[var(--radius-card)] border border-fail px-3 py-2 text-sm text-fail" data-testid="form-error">{actionData.errors.form}</p> : null}
+      <FormError message={actionData?.errors.form} testId="form-error" />
       <p className="text-sm text-muted">Every material belongs to one family; the leads of a family approve the proposals for its records. The key appears in addresses and never changes; the name can.</p>
 
       <Form key={loaderData.families.length} method="post" className="card grid gap-4 p-5 md:grid-cols-[10rem_1fr_1.4fr_auto]" noValidate aria-labelledby="create-family-title">

@@ -4,7 +4,7 @@ import { listTolerances, setTolerance, toleranceInput } from "~/.server/checks";
 import { requireRole } from "~/.server/permissions";
 import { redirectWithFlash } from "~/.server/session";
 import { readForm } from "~/.server/storage";
-import { FieldError, invalidProps } from "~/components/field-error";
+import { FieldError, FormError, invalidProps } from "~/components/field-error";
 
 export const meta: Route.MetaFunction = () => [{ title: "Check tolerances · Admin · Bandledger" }];
 
@@ -46,9 +46,7 @@ export default function AdminTolerances({ loaderData, actionData }: Route.Compon
       </div>
       {actionData && !loaderData.tolerances.some((t) => t.quantityKey === actionData.values.quantity) ? (
         // A quantity no row shows: its message has no field to stand at.
-        <p role="alert" className="rounded-[var(--radius-card)] border border-fail px-3 py-2 text-sm text-fail" data-testid="form-error">
-          {actionData.errors.quantity ?? actionData.errors.tolerance ?? Object.values(actionData.errors)[0]}
-        </p>
+        <FormError message={actionData.errors.quantity ?? actionData.errors.tolerance ?? Object.values(actionData.errors)[0]} testId="form-error" />
       ) : null}
       <div className="card overflow-x-auto">
         <table className="w-full text-left text-sm">

@@ -5,7 +5,7 @@ import { ROLES } from "~/.server/db/schema";
 import { requireRole } from "~/.server/permissions";
 import { redirectWithFlash } from "~/.server/session";
 import { readForm } from "~/.server/storage";
-import { FieldError, invalidProps } from "~/components/field-error";
+import { FieldError, FormError, invalidProps } from "~/components/field-error";
 
 export const meta: Route.MetaFunction = () => [{ title: "People · Admin · Bandledger" }];
 
@@ -66,7 +66,7 @@ export default function AdminUsers({ loaderData, actionData }: Route.ComponentPr
   return (
     <section className="space-y-6" aria-labelledby="users-title">
       <h1 id="users-title" className="text-2xl font-semibold tracking-tight">People</h1>
-      {actionData?.errors.form ? <p role="alert" className="rounded-[var(--radius-card)] border border-fail px-3 py-2 text-sm text-fail" data-testid="form-error">{actionData.errors.form}</p> : null}
+      <FormError message={actionData?.errors.form} testId="form-error" />
 
       <Form key={loaderData.users.length} method="post" className="card grid gap-4 p-5 md:grid-cols-[1.3fr_1fr_10rem_auto]" noValidate aria-labelledby="invite-title">
         <h2 id="invite-title" className="font-semibold md:col-span-4">Invite someone</h2>

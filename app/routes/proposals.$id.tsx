@@ -8,7 +8,7 @@ import { decideProposal } from "~/.server/workflow/decide";
 import { isWorkflowError, statusOf } from "~/.server/workflow/errors";
 import { addComment, rebaseProposal, withdrawProposal } from "~/.server/workflow/proposals";
 import { familyOfProposal, loadProposalPage } from "~/.server/workflow/views";
-import { FieldError, invalidProps } from "~/components/field-error";
+import { FieldError, FormError, invalidProps } from "~/components/field-error";
 import { ConsistencyChecks } from "~/components/proposals/consistency-checks";
 import { ProposalStateBadge, StaleBadge } from "~/components/proposals/proposal-state";
 import { RevisionCard } from "~/components/proposals/revision-card";
@@ -126,7 +126,7 @@ export default function ProposalPage({ loaderData: p, actionData }: Route.Compon
         </p>
       </header>
 
-      {message ? <p role="alert" className="rounded-[var(--radius-card)] border border-fail px-3 py-2 text-sm text-fail" data-testid="action-message">{message}</p> : null}
+      <FormError message={message} testId="action-message" />
 
       {p.state === "approved" || p.state === "rejected" ? (
         <section className={`card border-l-4 p-4 ${p.state === "approved" ? "border-l-pass" : "border-l-fail"}`} aria-label="Decision">

@@ -1,6 +1,6 @@
 import { useEffect, useMemo, useRef, useState } from "react";
 import { Form, useFetcher, useNavigation, useSubmit } from "react-router";
-import { FieldError, invalidProps } from "~/components/field-error";
+import { FieldError, FormError, invalidProps } from "~/components/field-error";
 import {
   payloadToFormData, SOURCE_KIND_KEYS, SOURCE_KIND_LABELS, validateProposal, type ProposalCatalogue, type ProposalFieldErrors, type ProposalKind,
   type ProposalPayload, type RevisionCardData,
@@ -205,9 +205,7 @@ export function ProposalForm(props: {
       {proposalId ? <input type="hidden" name="proposalId" value={proposalId} /> : null}
       <input type="hidden" name="kind" value={kind} />
 
-      {props.actionData?.message && props.actionData.intent !== "autosave" ? (
-        <p role="alert" className="rounded-[var(--radius-card)] border border-fail px-3 py-2 text-sm text-fail">{props.actionData.message}</p>
-      ) : null}
+      {props.actionData?.intent !== "autosave" ? <FormError message={props.actionData?.message} /> : null}
 
       {record ? (
         <section className="grid items-start gap-4 lg:grid-cols-[1fr_1fr]" aria-label="The record this proposal changes">
