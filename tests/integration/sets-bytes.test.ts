@@ -89,7 +89,7 @@ describe("a frozen release downloads as the same bytes", () => {
 
   it("after a mariadb-dump backup and a restore", async () => {
     const file = path.join(mkdtempSync(path.join(os.tmpdir(), "bl-bytes-")), "dump.sql");
-    const env = { ...process.env, DATABASE_URL: demo.t.url };
+    const env = { ...process.env, DATABASE_URL: demo.t.url, MIGRATION_DATABASE_URL: demo.t.adminUrl };
     execFileSync("bash", ["scripts/backup.sh", "backup", file], { env, stdio: "pipe" });
     await demo.server.stop();
     await demo.t.pool.end();
