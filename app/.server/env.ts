@@ -1,9 +1,18 @@
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import { randomBytes } from "node:crypto";
+import { isIP } from "node:net";
 import path from "node:path";
 import { z } from "zod";
 
 const projectRoot = process.cwd();
+
+function isProxyEntry(item: string): boolean {
+  const [address, prefix, extra] = item.split("/");
+  const family = isIP(address);
+  if (family === 0 || extra !== undefined) return false;
+  if (prefix === undefined) return true;
+  return /^\d{1,3}$/.test(prefix) && Number(prefix) <= (family === 6 ? 128 : 32);
+}
 
 const schema = z.object({
   NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
@@ -22,8 +31,13 @@ const schema = z.object({
   BANDLEDGER_PUBLIC_URL: z.url().default("http://127.0.0.1:3000"),
   BANDLEDGER_MAILBOX: z.enum(["on", "off"]).optional(),
   BANDLEDGER_MAILBOX_DIR: z.string().optional(),
-  // 1 when one reverse proxy sits in front: the client address is then the last X-Forwarded-For entry.
-  TRUST_PROXY: z.enum(["0", "1"]).default("0"),
+  // The addresses (or CIDR ranges) of the reverse proxies in front: X-Forwarded-For is believed only from them.
+  TRUST_PROXY: z
+    .string()
+    .default("")
+    .transform((v) => (v.trim() === "0" ? "" : v.trim()))
+    .refine((v) => v !== "1", "TRUST_PROXY lists the proxies' addresses now (e.g. TRUST_PROXY=127.0.0.1 or 10.0.0.0/8); 1 would believe X-Forwarded-For from anyone")
+    .refine((v) => v === "" || v.split(",").every((item) => isProxyEntry(item.trim())), "TRUST_PROXY must be IP addresses or CIDR ranges separated by commas, e.g. 127.0.0.1,10.0.0.0/8"),
   // API requests a token (or a signed-in user) may make per minute before answering 429.
   BANDLEDGER_API_RATE_PER_MINUTE: z.coerce.number().int().min(1).default(600),
 });

@@ -27,7 +27,7 @@ let mailboxDir: string;
 let app: AppServer;
 let ipCounter = 0;
 
-// Behind TRUST_PROXY=1 every test speaks from an address of its own, so the per-address limit of one test never meets another's.
+// Behind TRUST_PROXY=127.0.0.1 (a proxy on this host) every test speaks from an address of its own, so the per-address limit of one test never meets another's.
 function client(extra: Record<string, string> = {}) {
   ipCounter += 1;
   return new HttpClient(app.url, { "x-forwarded-for": `203.0.113.7, 10.9.0.${ipCounter}`, ...extra });
@@ -56,7 +56,7 @@ beforeAll(async () => {
   await loadTeam(t.db);
   mailboxDir = mkdtempSync(path.join(os.tmpdir(), "bl-auth-mail-"));
   sink = await startSink({ port: 0, dir: mailboxDir });
-  app = await startAppServer({ databaseUrl: t.url, smtpPort: sink.port, mailboxDir, extraEnv: { TRUST_PROXY: "1" } });
+  app = await startAppServer({ databaseUrl: t.url, smtpPort: sink.port, mailboxDir, extraEnv: { TRUST_PROXY: "127.0.0.1" } });
 });
 afterAll(async () => {
   await app?.stop();
@@ -325,7 +325,7 @@ describe("rate limit on code requests", () => {
     expect(await refused.text()).toContain("Too many codes requested; try again at");
   });
 
-  it("uses the socket address, not X-Forwarded-For, unless TRUST_PROXY=1", async () => {
+  it("uses the socket address, not X-Forwarded-For, unless the socket's peer is a proxy TRUST_PROXY lists", async () => {
     const plain = await startAppServer({ databaseUrl: t.url, smtpPort: sink.port, mailboxDir });
     try {
       for (let i = 0; i < 5; i++) {
@@ -338,6 +338,14 @@ describe("rate limit on code requests", () => {
       expect(rows[0].ip).toBe("127.0.0.1");
     } finally {
       await plain.stop();
+    }
+    // Another proxy is listed: 127.0.0.1 is not it, so a fresh address in X-Forwarded-For does not escape its limit.
+    const elsewhere = await startAppServer({ databaseUrl: t.url, smtpPort: sink.port, mailboxDir, extraEnv: { TRUST_PROXY: "10.9.9.9, 192.0.2.0/24" } });
+    try {
+      const forged = new HttpClient(elsewhere.url, { "x-forwarded-for": "198.51.100.200" });
+      expect((await forged.post("/sign-in", { email: "listed-elsewhere@kestrel-devices.test", returnTo: "/" })).status).toBe(429);
+    } finally {
+      await elsewhere.stop();
     }
   });
 });
