@@ -40,6 +40,10 @@ const schema = z.object({
     .refine((v) => v === "" || v.split(",").every((item) => isProxyEntry(item.trim())), "TRUST_PROXY must be IP addresses or CIDR ranges separated by commas, e.g. 127.0.0.1,10.0.0.0/8"),
   // API requests a token (or a signed-in user) may make per minute before answering 429.
   BANDLEDGER_API_RATE_PER_MINUTE: z.coerce.number().int().min(1).default(600),
+  // Physics checks (central-equation solves) one person may run per minute, over all their tokens and pages.
+  BANDLEDGER_CHECK_RATE_PER_MINUTE: z.coerce.number().int().min(1).default(300),
+  // Check requests one app process works on at once; more are answered 503 with Retry-After.
+  BANDLEDGER_CHECK_CONCURRENCY: z.coerce.number().int().min(1).default(32),
 });
 
 export type Env = z.infer<typeof schema> & {

@@ -1,5 +1,6 @@
 import type { Route } from "./+types/checks.report";
 import { checkReportForPayload } from "~/.server/checks";
+import { guardSolveOrRespond } from "~/.server/checks/solve-guard";
 import { requireSameOrigin, requireUser } from "~/.server/permissions";
 import { MAX_PLAIN_FORM_BYTES, readLimitedBody, readLimitedFormData, StorageError } from "~/.server/storage";
 import { payloadFromFormData } from "~/domain/proposal-schemas";
@@ -28,16 +29,17 @@ async function payloadOf(request: Request): Promise<unknown> {
 }
 
 export async function loader({ request }: Route.LoaderArgs) {
-  await requireUser(request);
+  const user = await requireUser(request);
   const payload = payloadFromFormData(formDataOf(new URL(request.url).searchParams));
-  return checkReportForPayload(payload);
+  return guardSolveOrRespond(user.id, () => checkReportForPayload(payload), "json");
 }
 
 export async function action({ request }: Route.ActionArgs) {
-  await requireUser(request);
+  const user = await requireUser(request);
   requireSameOrigin(request);
   try {
-    return checkReportForPayload(await payloadOf(request));
+    const payload = await payloadOf(request);
+    return await guardSolveOrRespond(user.id, () => checkReportForPayload(payload), "json");
   } catch (e) {
     if (e instanceof StorageError) return refusal(413, e.message);
     throw e;

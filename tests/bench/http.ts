@@ -106,7 +106,7 @@ if (args.only) {
   const written = await freeze(p.url, p.adminId);
   const mailboxDir = mkdtempSync(path.join(os.tmpdir(), "bl-bench-mail-"));
   const sink = await startSink({ port: 0, dir: mailboxDir });
-  const server = await startAppServer({ databaseUrl: p.url, smtpPort: sink.port, mailboxDir, extraEnv: { BANDLEDGER_API_RATE_PER_MINUTE: "100000000" } });
+  const server = await startAppServer({ databaseUrl: p.url, smtpPort: sink.port, mailboxDir, extraEnv: { BANDLEDGER_API_RATE_PER_MINUTE: "100000000", BANDLEDGER_CHECK_RATE_PER_MINUTE: "100000000" } });
   try {
     console.error(`bench: measuring at ${size} revisions (${CONNECTIONS} connections, ${DURATION} s per row)…`);
     const rows = await measure(server, { cookie: `__bandledger=${await sessionCookieValue(p.adminId)}`, token: p.token, family: p.family, sha256: written.sha256 });

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { isSolveRefused } from "../checks/solve-guard";
 import { isSetError } from "../sets/errors";
 import { readLimitedBody, StorageError } from "../storage";
 import { apiError } from "../tokens";
@@ -74,6 +75,10 @@ export async function runApi(handler: () => Promise<Response>): Promise<Response
   } catch (e) {
     if (e instanceof Response) return e;
     if (isSetError(e)) return apiError(e.status, e.code, e.message, e.field);
+    if (isSolveRefused(e)) {
+      const { status, message, retryAfterSeconds } = e.refusal;
+      return apiError(status, status === 429 ? "rate_limited" : "busy", message, null, { "Retry-After": String(retryAfterSeconds), "Cache-Control": "no-store" });
+    }
     console.error(e);
     return apiError(500, "internal_error", "The server hit an unexpected error; it has been logged.", null);
   }
