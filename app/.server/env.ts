@@ -91,7 +91,13 @@ export function env(): Env {
   const migration = () => (migrationUrl ??= e.MIGRATION_DATABASE_URL ?? (e.DATABASE_URL ? e.DATABASE_URL : embeddedDatabaseUrl(e.BANDLEDGER_DATA_DIR, e.BANDLEDGER_DB_PORT, e.BANDLEDGER_DB_NAME, "migrate")));
   const runtimeAccount = { user: decodeURIComponent(new URL(databaseUrl).username), host: e.BANDLEDGER_DB_ACCOUNT_HOST };
   const sessionSecret = e.SESSION_SECRET ?? readOrCreateSecret(e.BANDLEDGER_DATA_DIR, "session-secret");
-  const mailboxEnabled = e.BANDLEDGER_MAILBOX ? e.BANDLEDGER_MAILBOX === "on" : e.NODE_ENV !== "production";
+  // The mailbox holds every sign-in code: on only where asked for (npm start asks for it on loopback) or in a
+  // development server, never behind an https address, which is what a real deployment has.
+  const httpsPublic = e.BANDLEDGER_PUBLIC_URL.startsWith("https://");
+  if (e.BANDLEDGER_MAILBOX === "on" && httpsPublic) {
+    throw new Error(`Bandledger cannot start, the environment is invalid:\n  BANDLEDGER_MAILBOX: the local mailbox shows every sign-in code, so it is refused with an https public address (${e.BANDLEDGER_PUBLIC_URL}); send mail through SMTP_URL instead`);
+  }
+  const mailboxEnabled = e.BANDLEDGER_MAILBOX ? e.BANDLEDGER_MAILBOX === "on" : process.env.NODE_ENV === "development" && !httpsPublic;
   const mailboxDir = e.BANDLEDGER_MAILBOX_DIR ?? path.join(e.BANDLEDGER_DATA_DIR, "mailbox");
   cached = {
     ...e, databaseUrl, runtimeAccount, sessionSecret, mailboxDir, mailboxEnabled,
