@@ -4,7 +4,7 @@ import { db } from "./db/client";
 import { familyLeads, users, type Role } from "./db/schema";
 import { pageAddress } from "./auth/return-to";
 import { env } from "./env";
-import { getSession, SESSION_MAX_AGE_SECONDS } from "./session";
+import { sessionUser } from "./session";
 
 export type CurrentUser = {
   id: number;
@@ -42,26 +42,10 @@ export async function loadUser(userId: number): Promise<CurrentUser | null> {
   return row ? toCurrentUser(row) : null;
 }
 
-// The root loader and the page's loader both ask for the user of one request: ask the database once.
-const usersOfRequests = new WeakMap<Request, Promise<CurrentUser | null>>();
-
+// The root loader and the page's loader both ask for the user of one request: the session's row and its user
+// are read together, once per request (app/.server/session.ts).
 export function getOptionalUser(request: Request): Promise<CurrentUser | null> {
-  let user = usersOfRequests.get(request);
-  if (!user) {
-    user = readOptionalUser(request);
-    usersOfRequests.set(request, user);
-  }
-  return user;
-}
-
-async function readOptionalUser(request: Request): Promise<CurrentUser | null> {
-  const session = await getSession(request);
-  const userId = session.get("userId");
-  if (!userId) return null;
-  // The cookie's own expiry is the browser's promise; a replayed old cookie is refused here.
-  const signedInAt = session.get("signedInAt") ?? 0;
-  if (Date.now() - signedInAt > SESSION_MAX_AGE_SECONDS * 1000) return null;
-  return loadUser(userId);
+  return sessionUser(request);
 }
 
 function signInUrl(request: Request): string {

@@ -3,7 +3,7 @@ import { z } from "zod";
 import type { Route } from "./+types/account";
 import { accountDetails, profileInput, updateProfile } from "~/.server/auth/account";
 import { requireUser } from "~/.server/permissions";
-import { redirectWithFlash } from "~/.server/session";
+import { endSessionByHandle, endSessionsOfUser, listSessionsOfUser, redirectWithFlash, sessionIdOf } from "~/.server/session";
 import { createApiToken, listApiTokens, revokeApiToken, tokenNameField } from "~/.server/tokens";
 import { readForm } from "~/.server/storage";
 import { FieldError, invalidProps } from "~/components/field-error";
@@ -13,9 +13,13 @@ export const meta: Route.MetaFunction = () => [{ title: "Your account · Bandled
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
-  const [details, tokens] = await Promise.all([accountDetails(user.id), listApiTokens(user.id)]);
+  const [details, tokens, sessions] = await Promise.all([accountDetails(user.id), listApiTokens(user.id), sessionIdOf(request).then((id) => listSessionsOfUser(user.id, id))]);
   return {
     details: { ...details, lastSignInAt: details.lastSignInAt?.toISOString() ?? null },
+    sessions: sessions.map((x) => ({
+      handle: x.handle, current: x.current, ip: x.ip, client: describeClient(x.userAgent), userAgent: x.userAgent,
+      createdAt: x.createdAt.toISOString(), lastSeenAt: x.lastSeenAt.toISOString(),
+    })),
     tokens: tokens.map((t) => ({
       id: t.id, name: t.name, prefix: t.prefix,
       createdAt: t.createdAt.toISOString(), lastUsedAt: t.lastUsedAt?.toISOString() ?? null, revokedAt: t.revokedAt?.toISOString() ?? null,
@@ -23,7 +27,15 @@ export async function loader({ request }: Route.LoaderArgs) {
   };
 }
 
-type Errors = Partial<Record<"name" | "notifyMode" | "tokenName" | "token", string>>;
+type Errors = Partial<Record<"name" | "notifyMode" | "tokenName" | "token" | "session", string>>;
+
+// A short name for the program behind a session, for people to recognise their own browsers by.
+function describeClient(userAgent: string): string {
+  const known: [RegExp, string][] = [[/Edg\//, "Edge"], [/Firefox\//, "Firefox"], [/Chrom(e|ium)\//, "Chromium or Chrome"], [/Safari\//, "Safari"], [/curl\//, "curl"], [/node|undici/i, "a script (Node.js)"]];
+  const os = /Windows/.test(userAgent) ? " on Windows" : /Mac OS X/.test(userAgent) ? " on macOS" : /Linux/.test(userAgent) ? " on Linux" : "";
+  const name = known.find(([re]) => re.test(userAgent))?.[1];
+  return name ? name + os : userAgent ? "another program" : "unknown program";
+}
 type ActionResult = { intent: string; errors: Errors; values: Record<string, string>; createdToken: { name: string; token: string } | null };
 
 export async function action({ request }: Route.ActionArgs) {
@@ -50,6 +62,15 @@ export async function action({ request }: Route.ActionArgs) {
     if (!id.success || !(await revokeApiToken(user, id.data, request))) return fail({ token: "That token is already revoked or is not yours." });
     return redirectWithFlash(request, "/account", { kind: "ok", message: "The token is revoked; requests with it are now refused." });
   }
+  if (intent === "end-session") {
+    const ended = await endSessionByHandle(user.id, String(values.session ?? ""));
+    if (!ended) return fail({ session: "That session has already ended." });
+    return redirectWithFlash(request, "/account", { kind: "ok", message: "That session is ended: its browser must sign in again." });
+  }
+  if (intent === "end-other-sessions") {
+    const n = await endSessionsOfUser(user.id, await sessionIdOf(request));
+    return redirectWithFlash(request, "/account", { kind: "ok", message: n ? `${n} other session${n === 1 ? "" : "s"} ended.` : "There was no other session to end." });
+  }
   return fail({ token: "Unknown request." });
 }
 
@@ -59,7 +80,7 @@ function when(iso: string | null) {
 
 export default function Account({ loaderData, actionData }: Route.ComponentProps) {
   const navigation = useNavigation();
-  const { details, tokens } = loaderData;
+  const { details, tokens, sessions } = loaderData;
   const profile = usePreserveFormOnSignIn("account-profile");
   const errors = actionData?.errors ?? {};
   const profileValues = actionData?.intent === "profile" ? actionData.values : null;
@@ -158,6 +179,48 @@ export default function Account({ loaderData, actionData }: Route.ComponentProps
           </table>
         )}
         {tokens.length > 0 && activeTokens.length === 0 ? <p className="mt-2 text-xs text-muted">All your tokens are revoked.</p> : null}
+      </section>
+
+      <section className="card p-5" aria-labelledby="sessions-title">
+        <h2 id="sessions-title" className="font-semibold">Where you are signed in</h2>
+        <p className="mt-1 text-sm text-muted">
+          Each browser you signed in with, for up to 12 hours. End one you do not recognise or no longer use: it must sign in again.
+        </p>
+        <FieldError id="session-error" message={errors.session} />
+        <table className="mt-4 w-full text-left text-sm" data-testid="sessions">
+          <thead className="text-xs text-muted uppercase">
+            <tr><th className="py-1 pr-3">Program</th><th className="pr-3">From</th><th className="pr-3">Signed in</th><th className="pr-3">Last seen</th><th /></tr>
+          </thead>
+          <tbody>
+            {sessions.map((x) => (
+              <tr key={x.handle} className="border-t border-rule" data-current={x.current ? "yes" : undefined}>
+                <td className="py-1.5 pr-3" title={x.userAgent}>{x.client}</td>
+                <td className="pr-3 font-mono text-xs">{x.ip || "—"}</td>
+                <td className="pr-3 tabular-nums">{when(x.createdAt)}</td>
+                <td className="pr-3 tabular-nums">{when(x.lastSeenAt)}</td>
+                <td className="text-right">
+                  {x.current ? (
+                    <span className="text-xs text-muted">this browser</span>
+                  ) : (
+                    <Form method="post">
+                      <input type="hidden" name="intent" value="end-session" />
+                      <input type="hidden" name="session" value={x.handle} />
+                      <button type="submit" className="btn text-xs" aria-label={`End the session of ${x.client} from ${x.ip || "an unknown address"}`}>End</button>
+                    </Form>
+                  )}
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+        {sessions.some((x) => !x.current) ? (
+          <Form method="post" className="mt-3">
+            <input type="hidden" name="intent" value="end-other-sessions" />
+            <button type="submit" className="btn" disabled={navigation.state === "submitting"}>End every other session</button>
+          </Form>
+        ) : (
+          <p className="mt-3 text-xs text-muted">This browser is your only session.</p>
+        )}
       </section>
     </div>
   );

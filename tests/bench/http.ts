@@ -109,7 +109,7 @@ if (args.only) {
   const server = await startAppServer({ databaseUrl: p.url, smtpPort: sink.port, mailboxDir, extraEnv: { BANDLEDGER_API_RATE_PER_MINUTE: "100000000", BANDLEDGER_CHECK_RATE_PER_MINUTE: "100000000" } });
   try {
     console.error(`bench: measuring at ${size} revisions (${CONNECTIONS} connections, ${DURATION} s per row)…`);
-    const rows = await measure(server, { cookie: `__bandledger=${await sessionCookieValue(p.adminId)}`, token: p.token, family: p.family, sha256: written.sha256 });
+    const rows = await measure(server, { cookie: `__bandledger=${await sessionCookieValue(p.adminId, p.url)}`, token: p.token, family: p.family, sha256: written.sha256 });
     writeFileSync(args.out!, JSON.stringify({ rows, meta: { ...p.summary, releaseItems: written.itemCount, releaseSha256: written.sha256 } }));
   } finally {
     await server.stop();

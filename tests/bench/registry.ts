@@ -93,7 +93,7 @@ async function main() {
     const connection = await mysql.createConnection({ uri: url });
     const [rows] = await connection.query("SELECT id FROM users WHERE email = 'priya.raman@kestrel-devices.test'");
     await connection.end();
-    const cookie = `__bandledger=${await sessionCookieValue((rows as { id: number }[])[0].id)}`;
+    const cookie = `__bandledger=${await sessionCookieValue((rows as { id: number }[])[0].id, url)}`;
     const mailboxDir = mkdtempSync(path.join(os.tmpdir(), "bandledger-bench-mail-"));
     const sink = await startSink({ port: 0, dir: mailboxDir });
     const server = await startAppServer({ databaseUrl: url, smtpPort: sink.port, mailboxDir });

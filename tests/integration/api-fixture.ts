@@ -48,7 +48,7 @@ export async function startDemoServer(label: string, extraEnv: Record<string, st
       return token;
     },
     async cookie(person) {
-      return `__bandledger=${await sessionCookieValue(await demo.userId(person))}`;
+      return `__bandledger=${await sessionCookieValue(await demo.userId(person), t.url)}`;
     },
     async restart() {
       const port = demo.server.port;

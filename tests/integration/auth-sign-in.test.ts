@@ -2,17 +2,16 @@ import { createHash } from "node:crypto";
 import { mkdtempSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
-import { and, eq } from "drizzle-orm";
-import { createCookieSessionStorage } from "react-router";
+import { and, eq, sql } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { auditLog, signInCodes, signInRequests, users } from "~/.server/db/schema";
+import { auditLog, sessions, signInCodes, signInRequests, users } from "~/.server/db/schema";
 import { startSink, type Sink } from "~/.server/mail/sink";
 import { loadTeam } from "../../seed-data/load";
 import { startAppServer, type AppServer } from "../support/app-server";
 import { freshDatabase, type TestDatabase } from "../support/db";
 import { readLastMail, readMailbox } from "../support/mailbox";
 import { HttpClient } from "../support/route-access";
-import { TEST_SESSION_SECRET } from "../support/session";
+import { sessionCookieValue } from "../support/session";
 
 const RAVI = "ravi.menon@kestrel-devices.test";
 const PRIYA = "priya.raman@kestrel-devices.test";
@@ -209,18 +208,26 @@ describe("sign-in by e-mailed code", () => {
     expect(row.tries).toBe(3);
     expect((await c.post("/sign-in/code", { intent: "verify", code })).status).toBe(400);
 
-    // A fresh code signs in once; the same browser state replayed later (cookies copied before use) is refused.
+    // A fresh code signs in once: the same browser state sent twice at once (or replayed later) opens one session.
+    const [priya] = await t.db.select().from(users).where(eq(users.email, PRIYA));
+    const priyaSignIns = async () => (await t.db.select().from(auditLog).where(and(eq(auditLog.actorId, priya.id), eq(auditLog.action, "auth.sign_in")))).length;
+    const signInsBefore = await priyaSignIns();
     const again = client();
     const second = await requestCode(again, PRIYA);
     const { code: fresh } = await codeFromMail(PRIYA, second.after);
     const copied = new Map(again.cookies);
-    expect((await again.post("/sign-in/code", { intent: "verify", code: fresh })).status).toBe(302);
+    const twins = [client(), client()];
+    for (const twin of twins) for (const [k, v] of copied) twin.cookies.set(k, v);
+    const twinAnswers = await Promise.all(twins.map((twin) => twin.post("/sign-in/code", { intent: "verify", code: fresh })));
+    const texts = await Promise.all(twinAnswers.map((a) => a.text()));
+    expect(twinAnswers.filter((a) => a.status === 302 && a.headers.get("location") === "/").length, texts.join("\n")).toBe(1);
+    expect(await priyaSignIns()).toBe(signInsBefore + 1);
     const replay = client();
     for (const [k, v] of copied) replay.cookies.set(k, v);
     const refused = await replay.post("/sign-in/code", { intent: "verify", code: fresh });
-    expect(refused.status).toBe(400);
-    expect(await refused.text()).toContain("already signed someone in");
+    expect(refused.headers.get("location") ?? "").not.toBe("/");
     expect((await replay.get("/account")).status).toBe(302);
+    expect(await priyaSignIns()).toBe(signInsBefore + 1);
   });
 
   it("limits code submissions per client address, whichever codes they carry", async () => {
@@ -352,13 +359,9 @@ describe("rate limit on code requests", () => {
 
 describe("sessions and sign-out", () => {
   it("sends an expired session to sign in with the page it was on, React Router's data suffix removed", async () => {
-    const storage = createCookieSessionStorage({ cookie: { name: "__bandledger", secrets: [TEST_SESSION_SECRET] } });
     const [ravi] = await t.db.select().from(users).where(eq(users.email, RAVI));
-    const session = await storage.getSession();
-    session.set("userId", ravi.id);
-    session.set("signedInAt", Date.now() - 13 * 3600_000);
     const c = client();
-    c.cookies.set("__bandledger", (await storage.commitSession(session)).split(";")[0].slice("__bandledger=".length));
+    c.cookies.set("__bandledger", await sessionCookieValue(ravi.id, t.url, { signedInAt: Date.now() - 13 * 3600_000 }));
     const r = await c.get("/account?tab=tokens");
     expect(r.status).toBe(302);
     expect(r.headers.get("location")).toBe("/sign-in?returnTo=%2Faccount%3Ftab%3Dtokens");
@@ -383,6 +386,73 @@ describe("sessions and sign-out", () => {
     const rows = await t.db.select().from(auditLog).where(and(eq(auditLog.action, "auth.sign_out"), eq(auditLog.actorId, mei.id)));
     expect(rows).toHaveLength(1);
     expect(rows[0].ip).toBe("10.8.0.1");
+  });
+
+  it("keeps sessions on the server: signing out ends a copied cookie, and signing in gives a new session id", async () => {
+    const c = client();
+    const { after } = await requestCode(c, TOMAS);
+    const { code } = await codeFromMail(TOMAS, after);
+    const before = c.cookies.get("__bandledger")!;
+    expect((await c.post("/sign-in/code", { intent: "verify", code })).status).toBe(302);
+    const signedIn = c.cookies.get("__bandledger")!;
+    expect(signedIn).not.toBe(before);
+    // The session that asked for the code is gone: its cookie signs no one in.
+    const asker = client();
+    asker.cookies.set("__bandledger", before);
+    expect((await asker.get("/account")).status).toBe(302);
+    // A copy of the signed-in cookie works until its owner signs out, then nowhere.
+    const copy = client();
+    copy.cookies.set("__bandledger", signedIn);
+    expect((await copy.get("/account")).status).toBe(200);
+    expect((await c.post("/sign-out", {})).status).toBe(302);
+    expect((await copy.get("/account")).status).toBe(302);
+    const [row] = await t.db.select({ n: sql<number>`COUNT(*)` }).from(sessions).where(eq(sessions.id, createHash("sha256").update(JSON.parse(Buffer.from(decodeURIComponent(signedIn).split(".")[0], "base64").toString("utf8"))).digest("hex")));
+    expect(Number(row.n)).toBe(0);
+    // Only a digest of each id is kept, never the id the cookie carries.
+    const ids = (await t.db.select({ id: sessions.id }).from(sessions)).map((r) => r.id);
+    expect(ids.every((id) => /^[0-9a-f]{64}$/.test(id))).toBe(true);
+  });
+
+  it("lists a person's sessions on the account page and ends one, or every other", async () => {
+    const [hanna] = await t.db.select().from(users).where(eq(users.email, HANNA));
+    const [here, laptop, pipeline] = await Promise.all([0, 1, 2].map(() => HttpClient.signedIn(app.url, hanna.id)));
+    const page = await (await here.get("/account")).text();
+    const handles = [...page.matchAll(/name="session" value="([0-9a-f]{24})"/g)].map((m) => m[1]);
+    expect(handles.length).toBeGreaterThanOrEqual(2);
+    expect(page).toContain("this browser");
+    expect((await here.post("/account", { intent: "end-session", session: handles[0] })).status).toBe(302);
+    const alive = await Promise.all([laptop, pipeline].map(async (x) => (await x.get("/account")).status));
+    expect(alive.sort()).toEqual([200, 302]);
+    expect((await here.post("/account", { intent: "end-session", session: handles[0] })).status).toBe(400);
+    expect((await here.post("/account", { intent: "end-other-sessions" })).status).toBe(302);
+    expect((await laptop.get("/account")).status).toBe(302);
+    expect((await pipeline.get("/account")).status).toBe(302);
+    expect((await here.get("/account")).status).toBe(200);
+    // Another person's handle ends nothing.
+    const [mei] = await t.db.select().from(users).where(eq(users.email, MEI));
+    const other = await HttpClient.signedIn(app.url, mei.id);
+    const hannaPage = await (await here.get("/account")).text();
+    const own = /data-current="yes"/.test(hannaPage);
+    expect(own).toBe(true);
+    const meiHandles = [...(await (await other.get("/account")).text()).matchAll(/name="session" value="([0-9a-f]{24})"/g)].map((m) => m[1]);
+    for (const h of meiHandles) expect((await here.post("/account", { intent: "end-session", session: h })).status).toBe(400);
+  });
+
+  it("ends a person's sessions at once when they are deactivated or their role changes", async () => {
+    const [admin] = await t.db.select().from(users).where(eq(users.role, "admin"));
+    const adminClient = await HttpClient.signedIn(app.url, admin.id);
+    const [priya] = await t.db.select().from(users).where(eq(users.email, PRIYA));
+    const priyaClient = await HttpClient.signedIn(app.url, priya.id);
+    expect((await priyaClient.get("/account")).status).toBe(200);
+    const version = async () => (await t.db.select().from(users).where(eq(users.id, priya.id)))[0].version;
+    expect((await adminClient.post("/admin/users", { intent: "role", userId: String(priya.id), version: String(await version()), role: "contributor" })).status).toBe(302);
+    expect((await priyaClient.get("/account")).status).toBe(302);
+    const again = await HttpClient.signedIn(app.url, priya.id);
+    expect((await again.get("/account")).status).toBe(200);
+    expect((await adminClient.post("/admin/users", { intent: "deactivate", userId: String(priya.id), version: String(await version()) })).status).toBe(302);
+    expect((await again.get("/account")).status).toBe(302);
+    expect(await t.db.select().from(sessions).where(eq(sessions.userId, priya.id))).toEqual([]);
+    await t.db.update(users).set({ active: true, role: "reader" }).where(eq(users.id, priya.id));
   });
 
   it("lets React Router refuse a foreign Origin on UI actions: no code is sent and no name changes", async () => {

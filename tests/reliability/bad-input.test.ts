@@ -1,6 +1,6 @@
-import { and, asc, eq, ne } from "drizzle-orm";
+import { and, asc, eq, isNotNull, ne } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { apiTokens, familyLeads, materialFamilies, materials, proposals, quantities, records, users } from "~/.server/db/schema";
+import { apiTokens, familyLeads, materialFamilies, materials, proposals, quantities, records, sessions, users } from "~/.server/db/schema";
 import { loadProposalCatalogue } from "~/.server/workflow/catalogue";
 import { payloadFromFormData, validateProposal } from "~/domain/proposal-schemas";
 import { TEAM_DOMAIN } from "../../seed-data/team";
@@ -50,7 +50,7 @@ beforeAll(async () => {
     expect(taken).toEqual([]);
   }
 
-  const cookieOf = async (name: string) => `__bandledger=${await sessionCookieValue(await person(name))}`;
+  const cookieOf = async (name: string) => `__bandledger=${await sessionCookieValue(await person(name), demo.t.url)}`;
   cookies.reader = await cookieOf("priya.raman");
   cookies.contributor = await cookieOf("tomas.okafor");
   cookies.author = await cookieOf("mei.tanaka");
@@ -179,12 +179,15 @@ async function snapshot() {
   const { payload: _typed, materialId: _m, quantityId: _q, updatedAt: _u, ...draft } = row;
   // api_tokens.last_used_at is stamped by reads (at most once a minute); every other column must stay.
   const tokens = (await d.select().from(apiTokens).orderBy(asc(apiTokens.id))).map(({ lastUsedAt: _used, ...t }) => t);
-  return { sums, others, draft, tokens };
+  // Signed-in sessions stay as they were but for last_seen_at (stamped at most once a minute); a refused request may
+  // leave an anonymous row holding only its notice, which signs no one in.
+  const signedIn = (await d.select().from(sessions).where(isNotNull(sessions.userId)).orderBy(asc(sessions.id))).map(({ lastSeenAt: _seen, ...x }) => x);
+  return { sums, others, draft, tokens, signedIn };
 }
 
-// Tables whose checksum is replaced by a finer comparison above: proposals (the draft's payload) and api_tokens
-// (last_used_at). Nothing else is allowed to move.
-const COMPARED_BY_ROWS = ["proposals", "api_tokens"];
+// Tables whose checksum is replaced by a finer comparison above: proposals (the draft's payload), api_tokens
+// (last_used_at) and sessions (last_seen_at, anonymous notices). Nothing else is allowed to move.
+const COMPARED_BY_ROWS = ["proposals", "api_tokens", "sessions"];
 
 describe("a corpus of bad input against the forms, the CSV upload and the API", () => {
   it("refuses every case with a 4xx and a message, never a 5xx, and changes nothing in the database", async () => {
@@ -222,5 +225,6 @@ describe("a corpus of bad input against the forms, the CSV upload and the API", 
     expect(after.others).toEqual(before.others);
     expect(after.draft).toEqual(before.draft);
     expect(after.tokens).toEqual(before.tokens);
+    expect(after.signedIn).toEqual(before.signedIn);
   });
 });

@@ -2,7 +2,7 @@ import { spawn, type ChildProcess } from "node:child_process";
 import { existsSync, mkdirSync, openSync } from "node:fs";
 import path from "node:path";
 import { freePort } from "./ports";
-import { TEST_SESSION_SECRET } from "./session";
+import { registerAppDatabase, TEST_SESSION_SECRET } from "./session";
 
 export type AppServer = { url: string; port: number; process: ChildProcess; stop: () => Promise<void> };
 
@@ -17,6 +17,7 @@ export async function startAppServer(options: {
   if (!existsSync("build/server/index.js")) throw new Error("no production build: run `npx react-router build` first (npm test does)");
   const port = options.port ?? (await freePort());
   const url = `http://127.0.0.1:${port}`;
+  registerAppDatabase(url, options.databaseUrl);
   mkdirSync("test-artifacts", { recursive: true });
   const log = openSync(path.join("test-artifacts", `app-${port}.log`), "a");
   const child = spawn(process.execPath, ["node_modules/@react-router/serve/bin.js", "./build/server/index.js"], {

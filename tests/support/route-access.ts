@@ -1,4 +1,4 @@
-import { sessionCookieValue } from "./session";
+import { sessionCookieFor } from "./session";
 
 // Who may call each route: authz-matrix.test.ts fails for a route of app/routes.ts without an entry (see DEVELOPERS.md).
 export type Access =
@@ -127,7 +127,7 @@ export class HttpClient {
 
   static async signedIn(base: string, userId: number, headers: Record<string, string> = {}): Promise<HttpClient> {
     const c = new HttpClient(base, headers);
-    c.cookies.set("__bandledger", await sessionCookieValue(userId));
+    c.cookies.set("__bandledger", await sessionCookieFor(base, userId));
     return c;
   }
 

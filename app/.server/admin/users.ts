@@ -2,7 +2,7 @@ import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import { z } from "zod";
 import { audit } from "../audit";
 import { db } from "../db/client";
-import { familyLeads, materialFamilies, ROLES, users, type Role } from "../db/schema";
+import { familyLeads, materialFamilies, ROLES, sessions, users, type Role } from "../db/schema";
 import { env } from "../env";
 import { sendMail } from "../mail/send";
 import { invitationMail } from "../mail/templates";
@@ -95,6 +95,8 @@ export async function changeRole(admin: CurrentUser, input: z.infer<typeof roleC
     if (target.role === input.role) return { ok: true as const, from: target.role, removed: [] as number[], target };
     if (target.role === "admin" && target.active && (await otherActiveAdmins(tx, target.id)) === 0) return { ok: false as const, errors: { row: LAST_ADMIN } };
     await tx.update(users).set({ role: input.role, version: sql`${users.version} + 1` }).where(and(eq(users.id, target.id), eq(users.version, input.version)));
+    // Rights change with the role: every open session of theirs ends, so each starts again under the new role.
+    await tx.delete(sessions).where(eq(sessions.userId, target.id));
     let removed: number[] = [];
     // Assignments belong to the lead role alone: they go whenever the new role is another, admin included.
     if (input.role !== "lead") {
@@ -118,6 +120,7 @@ export async function setActive(admin: CurrentUser, input: z.infer<typeof userCh
     if (target.active === input.active) return { ok: true as const, target, changed: false };
     if (!input.active && target.role === "admin" && (await otherActiveAdmins(tx, target.id)) === 0) return { ok: false as const, errors: { row: LAST_ADMIN } };
     await tx.update(users).set({ active: input.active, version: sql`${users.version} + 1` }).where(and(eq(users.id, target.id), eq(users.version, input.version)));
+    if (!input.active) await tx.delete(sessions).where(eq(sessions.userId, target.id));
     return { ok: true as const, target, changed: true };
   });
   if (!result.ok) return result;

@@ -6,7 +6,7 @@ import { audit } from "../audit";
 import { env } from "../env";
 import { sendMail } from "../mail/send";
 import { signInCodeMail } from "../mail/templates";
-import { commitSession, getSession } from "../session";
+import { commitSession, endSessionById, freshSession, getSession } from "../session";
 import { markCodeUsed } from "./codes";
 import { safeReturnTo } from "./return-to";
 import { codeDigest, readTotpCookie } from "./totp-cookie";
@@ -48,15 +48,16 @@ async function verify({ email, request }: TOTPVerifyParams): Promise<never> {
   if (!user) throw new Error("code-wrong");
   await markSignedIn(user.id);
   const to = safeReturnTo(session.get("returnTo"));
-  session.unset("pendingSignIn");
-  session.unset("returnTo");
-  session.set("userId", user.id);
-  session.set("signedInAt", Date.now());
-  session.flash("flash", { kind: "ok", message: `Signed in as ${user.name}.` });
+  // A new session with a new id for the signed-in person; the one that asked for the code is ended (no fixation).
+  const signedIn = freshSession(request);
+  signedIn.set("userId", user.id);
+  signedIn.set("signedInAt", Date.now());
+  signedIn.flash("flash", { kind: "ok", message: `Signed in as ${user.name}.` });
+  await endSessionById(session.id);
   await audit({ id: user.id, email: user.email }, "auth.sign_in", { type: "user", id: user.id }, request, {
     via: new URL(request.url).pathname === SIGN_IN_PATHS.magicLink ? "link" : "code",
   });
-  throw redirect(to, { headers: { "Set-Cookie": await commitSession(session) } });
+  throw redirect(to, { headers: { "Set-Cookie": await commitSession(signedIn) } });
 }
 
 let instance: Authenticator<never> | undefined;

@@ -2,7 +2,7 @@ import { redirect } from "react-router";
 import { audit } from "../audit";
 import { getOptionalUser } from "../permissions";
 import { countHit, reserveSignInRequest } from "../rate-limit";
-import { commitSession, getSession, type PendingSignIn } from "../session";
+import { commitSession, endSessionById, freshSession, getSession, type PendingSignIn } from "../session";
 import { authenticator } from "./authenticator";
 import { clientAddress } from "./client-address";
 import { signInMessage, type SignInMessageKey } from "./messages";
@@ -165,13 +165,12 @@ export async function completeMagicLink(request: Request): Promise<Response> {
 export async function signOut(request: Request): Promise<Response> {
   const user = await getOptionalUser(request);
   if (user) await audit({ id: user.id, email: user.email }, "auth.sign_out", { type: "user", id: user.id }, request);
+  // The session's row goes, so a copy of its cookie signs no one in anywhere; the notice rides on a new, empty one.
   const session = await getSession(request);
-  session.unset("userId");
-  session.unset("signedInAt");
-  session.unset("pendingSignIn");
-  session.unset("returnTo");
-  session.flash("flash", { kind: "ok", message: "You are signed out." });
-  return redirect("/", { headers: { "Set-Cookie": await commitSession(session) } });
+  await endSessionById(session.id);
+  const after = freshSession(request);
+  after.flash("flash", { kind: "ok", message: "You are signed out." });
+  return redirect("/", { headers: { "Set-Cookie": await commitSession(after) } });
 }
 
 export async function cancelPendingSignIn(request: Request): Promise<Response> {

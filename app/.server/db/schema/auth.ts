@@ -79,6 +79,19 @@ export const signInCodes = mysqlTable("sign_in_codes", {
   usedAt: datetime("used_at", { fsp: 3 }),
 }, (t) => [index("sign_in_codes_expires").on(t.expiresAt)]);
 
+// Server-side sessions: the cookie carries a random id of 256 bits (signed); only its SHA-256 is kept here, so a
+// copy of this table signs no one in. Deleting a row ends that session wherever its cookie is.
+export const sessions = mysqlTable("sessions", {
+  id: varchar({ length: 64 }).notNull().primaryKey(),
+  userId: int("user_id"),
+  data: json().$type<Record<string, unknown>>().notNull(),
+  createdAt: datetime("created_at", { fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
+  lastSeenAt: datetime("last_seen_at", { fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
+  expiresAt: datetime("expires_at", { fsp: 3 }).notNull(),
+  ip: varchar({ length: 64 }).notNull().default(""),
+  userAgent: varchar("user_agent", { length: 255 }).notNull().default(""),
+}, (t) => [index("sessions_user").on(t.userId, t.expiresAt), index("sessions_expires").on(t.expiresAt)]);
+
 // Generic fixed-window counters (API rate limits and the like).
 export const rateCounters = mysqlTable("rate_counters", {
   bucket: varchar({ length: 160 }).notNull().primaryKey(),
