@@ -5,7 +5,7 @@ import { endMembersOf, materialByName, materialCheckValues } from "../checks/inp
 import { db } from "../db/client";
 import { materials, quantities, records } from "../db/schema";
 import type { Executor } from "../registry/executor";
-import { deriveMaterialValues, type DerivedInputs, type DerivedValuesData } from "./compute";
+import { deriveMaterialValues, type DerivedInputs, type DerivedValuesData } from "~/domain/derived";
 
 export const DERIVED_DEFAULT_TEMPERATURE_K = 300;
 export const DERIVED_MAX_TEMPERATURE_K = 2000;
@@ -70,14 +70,15 @@ export async function loadDerivedValues(materialKey: string, params: URLSearchPa
   const [values, endMembers, substrates] = await Promise.all([
     materialCheckValues(ex, material.id),
     endMembersOf(ex, material),
-    material.kind === "alloy" ? substrateCandidates(ex, material.id) : Promise.resolve([]),
+    substrateCandidates(ex, material.id),
   ]);
   const derived = deriveMaterialValues(
     {
       material: { key: material.key, name: material.name, kind: material.kind, formula: material.formula, compositionVariable: material.compositionVariable },
       values, endMembers: endMembers ?? null, substrates,
     },
-    { temperatureK: request.temperatureK, composition: request.composition, substrateKey: request.substrateKey },
+    // The page draws a straight line where a bowing parameter is missing (and says so at the value), so it asks for it.
+    { temperatureK: request.temperatureK, composition: request.composition, substrateKey: request.substrateKey, defaultSubstrate: true, linearWhereBowingMissing: true },
   );
   if (request.substrateKey && derived.substrateKey !== request.substrateKey) request.form.errors.substrate = "Choose one of the substrates listed.";
   return { derived, form: request.form };

@@ -1,5 +1,6 @@
 import { Form } from "react-router";
-import type { DerivedForm, DerivedNumber, DerivedValuesData } from "~/.server/derived";
+import type { DerivedForm } from "~/.server/derived";
+import type { DerivedNumber, DerivedValuesData } from "~/domain/derived";
 import { exact, readable, recordHref, withUnit } from "~/components/checks/format";
 import { FieldError, invalidProps } from "~/components/field-error";
 import { AlloyPlot } from "./alloy-plot";
