@@ -169,7 +169,8 @@ export interface EvaluatedMaterial {
 export interface Evaluation {
   schema: typeof EVALUATION_SCHEMA;
   schemaVersion: typeof EVALUATION_SCHEMA_VERSION;
-  release: { set: string; setName: string; number: number; sha256: string; codataEdition: string; softwareVersion: string };
+  /** The release it was computed from; its content hash first, so the file's first lines name it. */
+  release: { sha256: string; set: string; setName: string; number: number; codataEdition: string; softwareVersion: string };
   evaluatedWith: { bandledgerVersion: string; codataEdition: string; uncertaintyMethod: string };
   conditions: { temperatureK: string; material: string | null; x: string | null; substrate: string | null; missingBowing: "name" | "linear" };
   caution: string;
@@ -269,7 +270,7 @@ export function evaluateRelease(content: ReleaseContent, sha256: string, query: 
       schema: EVALUATION_SCHEMA,
       schemaVersion: EVALUATION_SCHEMA_VERSION,
       release: {
-        set: content.set.slug, setName: content.set.name, number: content.release.number, sha256,
+        sha256, set: content.set.slug, setName: content.set.name, number: content.release.number,
         codataEdition: content.release.codataEdition, softwareVersion: content.release.softwareVersion,
       },
       evaluatedWith: { bandledgerVersion, codataEdition: CODATA_EDITION, uncertaintyMethod: GUM_METHOD },

@@ -65,28 +65,31 @@ export function combine(value: number, parts: readonly (readonly [Propagated, nu
 /** The budget and the combined standard uncertainty of a propagated value. */
 export function uncertaintyOf(p: Propagated): { inputs: DerivedInput[]; uncertainty: CombinedUncertainty } {
   let sumOfSquares = 0;
-  let stated = 0;
+  let moving = 0;
+  let movingStated = 0;
   const notStated: string[] = [];
   const inputs: DerivedInput[] = [];
   for (const { input, c } of p.terms.values()) {
     const u = input.uncertainty === null ? null : Number(input.uncertainty);
     const moves = c !== 0;
+    if (moves) moving++;
     let contribution: string | null = null;
     if (u !== null && Number.isFinite(u)) {
       const part = Math.abs(c) * u;
       sumOfSquares += part * part;
-      if (moves) stated++;
+      if (moves) movingStated++;
       contribution = toDecimalString(part, UNCERTAINTY_SIGNIFICANT_DIGITS);
     } else if (moves) {
       notStated.push(input.material ? `${input.material} ${input.symbol}` : input.symbol);
     }
     inputs.push({ ...input, sensitivity: toDecimalString(c), contribution });
   }
-  const status = stated === 0 ? "not-stated" : notStated.length ? "partial" : "complete";
+  // A result that no input moves is exact; one whose moving inputs state no uncertainty has none to give, not a zero.
+  const status = moving > 0 && movingStated === 0 ? "not-stated" : notStated.length ? "partial" : "complete";
   return {
     inputs,
     uncertainty: {
-      standard: stated === 0 ? null : toDecimalString(Math.sqrt(sumOfSquares), UNCERTAINTY_SIGNIFICANT_DIGITS),
+      standard: status === "not-stated" ? null : toDecimalString(Math.sqrt(sumOfSquares), UNCERTAINTY_SIGNIFICANT_DIGITS),
       status,
       notStated,
       method: GUM_METHOD,
