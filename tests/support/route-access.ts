@@ -60,6 +60,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
   "routes/api.v1.set-releases": { access: "api-user", requests: [{ method: "GET", path: "/api/v1/sets/hemt-baseline/releases" }] },
   "routes/api.v1.release": { access: "api-user", requests: [{ method: "GET", path: "/api/v1/sets/hemt-baseline/releases/3" }] },
   "routes/api.v1.release-download": { access: "api-user", requests: [{ method: "GET", path: "/api/v1/sets/hemt-baseline/releases/3/download?format=csv" }] },
+  "routes/api.v1.release-evaluate": { access: "api-user", requests: [{ method: "GET", path: "/api/v1/sets/hemt-baseline/releases/3/evaluate?temperature=77" }] },
   "routes/api.v1.set-compare": { access: "api-user", requests: [{ method: "GET", path: "/api/v1/sets/hemt-baseline/compare?from=2&to=3" }] },
   "routes/api.v1.checks.nfe": { access: "api-user", requests: [{ method: "POST", path: "/api/v1/checks/nfe", form: {} }] },
   "routes/api.v1.not-found": { access: "not-found", requests: [{ method: "GET", path: "/api/v1/no-such-endpoint" }] },
