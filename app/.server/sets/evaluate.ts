@@ -1,7 +1,7 @@
 import { eq } from "drizzle-orm";
 import {
-  evaluateRelease, evaluationFileName, evaluationText, parseEvaluationQuery, type Evaluation, type EvaluationField, type EvaluationFormat,
-  type EvaluationQuery,
+  evaluateRelease, evaluationFileName, evaluationText, parseEvaluationQuery, releaseMaterials, releaseSubstrates, type Evaluation, type EvaluationField,
+  type EvaluationFormat, type EvaluationQuery,
 } from "~/domain/derived";
 import { parseReleaseJson, type ReleaseContent } from "~/domain/release-format";
 import { db } from "../db/client";
@@ -79,4 +79,46 @@ export function evaluationResponse(evaluation: Evaluation, format: EvaluationFor
   });
   if (format === "csv") headers.set("Content-Disposition", `attachment; filename="${evaluationFileName(evaluation, "csv")}"`);
   return new Response(evaluationText(evaluation, format), { status: 200, headers });
+}
+
+export type ReleaseEvaluationForm = {
+  /** As typed, so the form shows what was asked for. */
+  values: { temperature: string; material: string; x: string; substrate: string; missingBowing: string };
+  errors: Partial<Record<EvaluationField | "format" | "query", string>>;
+};
+
+export type ReleaseEvaluationPage = {
+  form: ReleaseEvaluationForm;
+  options: { materials: { key: string; name: string; alloy: boolean }[]; substrates: { key: string; name: string }[] };
+  evaluation: Evaluation | null;
+  /** The query of the evaluation shown, for its downloads. */
+  query: string | null;
+};
+
+/** The release page's "Evaluate at…": nothing until a temperature is asked for, then the evaluation or the fields at fault. */
+export async function loadReleaseEvaluation(slug: string, number: number, params: URLSearchParams): Promise<ReleaseEvaluationPage> {
+  const { content } = await releaseContent(slug, number);
+  const materials = releaseMaterials(content);
+  const options = {
+    materials: [...materials.values()].map((m) => ({ key: m.material.key, name: m.material.name, alloy: m.material.kind === "alloy" })),
+    substrates: releaseSubstrates(materials).map((m) => ({ key: m.material.key, name: m.material.name })),
+  };
+  const text = (k: string) => (params.get(k) ?? "").slice(0, 40);
+  const form: ReleaseEvaluationForm = {
+    values: { temperature: text("temperature"), material: text("material"), x: text("x"), substrate: text("substrate"), missingBowing: text("missingBowing") },
+    errors: {},
+  };
+  if (!params.has("temperature")) return { form, options, evaluation: null, query: null };
+  // Empty fields of the GET form mean "not asked".
+  const asked = new URLSearchParams([...params].filter(([k, v]) => v.trim() !== "" && k !== "format"));
+  if (!asked.has("temperature")) asked.set("temperature", "");
+  const read = readEvaluationParams(asked);
+  if (!read.ok) return { form: { ...form, errors: read.errors }, options, evaluation: null, query: null };
+  try {
+    const evaluation = await evaluateStoredRelease(slug, number, read.request.query);
+    return { form, options, evaluation, query: asked.toString() };
+  } catch (e) {
+    if (e instanceof SetError && e.code === "invalid_request" && e.field) return { form: { ...form, errors: { [e.field]: e.message } }, options, evaluation: null, query: null };
+    throw e;
+  }
 }

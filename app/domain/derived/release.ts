@@ -179,7 +179,8 @@ export interface Evaluation {
 
 export type EvaluationResult = { ok: true; evaluation: Evaluation } | { ok: false; field: EvaluationField; message: string };
 
-function valueOut(n: DerivedNumber): EvaluatedValue {
+/** A derived number as exports and tables carry it: the uncertainty flattened, the budget with its inputs. */
+export function evaluatedValueOf(n: DerivedNumber): EvaluatedValue {
   return {
     id: n.id, label: n.label, value: n.value, unit: n.unit,
     standardUncertainty: n.uncertainty.standard, uncertaintyStatus: n.uncertainty.status, uncertaintyNotStated: n.uncertainty.notStated,
@@ -261,7 +262,7 @@ export function evaluateRelease(content: ReleaseContent, sha256: string, query: 
       },
     );
     base.substrate = derived.substrateKey;
-    base.values = derivedNumbersOf(derived).map(valueOut);
+    base.values = derivedNumbersOf(derived).map(evaluatedValueOf);
     base.missing = derived.missing;
   }
   return {
