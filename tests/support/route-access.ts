@@ -46,7 +46,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
   "routes/sets.new": { access: "role:contributor", requests: [{ method: "GET", path: "/sets/new" }, { method: "POST", path: "/sets/new", form: { name: "" } }] },
   "routes/sets.detail": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline" }, { method: "POST", path: "/sets/hemt-baseline", form: { intent: "unwatch" } }] },
   "routes/sets.compare": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/compare?from=2&to=3" }] },
-  "routes/sets.release": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/releases/3" }] },
+  "routes/sets.release": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/releases/3" }, { method: "GET", path: "/sets/hemt-baseline/releases/3?temperature=77&material=AlGaAs&x=0.3" }] },
   "routes/releases.json": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/releases/3.json" }] },
   "routes/releases.csv": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/releases/3.csv" }] },
   "routes/api-docs": { access: "signed-in", requests: [{ method: "GET", path: "/api-docs" }] },
