@@ -44,7 +44,11 @@ export function parseDerivedSearch(params: URLSearchParams): { form: DerivedForm
   };
 }
 
-async function substrateCandidates(ex: Executor, exceptId: number): Promise<DerivedInputs["substrates"]> {
+/**
+ * Binaries and elements with a current lattice constant at 300 K. `valuesOf` says whose values to read: every one's
+ * (an alloy's page picks the substrate its composition matches), or only the one asked for (a binary's mismatch).
+ */
+async function substrateCandidates(ex: Executor, exceptId: number, valuesOf: "all" | string | null): Promise<DerivedInputs["substrates"]> {
   const rows = await ex
     .selectDistinct({ id: materials.id, key: materials.key, name: materials.name, kind: materials.kind })
     .from(materials)
@@ -53,8 +57,13 @@ async function substrateCandidates(ex: Executor, exceptId: number): Promise<Deri
     .where(and(ne(materials.kind, "alloy"), ne(materials.id, exceptId), eq(quantities.key, "lattice_a"), eq(records.status, "active"), eq(records.temperatureK, "300.000")))
     .orderBy(asc(materials.key));
   // In parallel: the pool spreads the per-substrate reads over its connections instead of one after another.
-  const out = await Promise.all(rows.map(async (m) => ({ material: { key: m.key, name: m.name, kind: m.kind }, values: await materialCheckValues(ex, m.id) })));
-  return out.filter((s) => s.values.some((v) => v.quantityKey === "lattice_a" && v.temperatureK !== null && Number(v.temperatureK) === 300));
+  const out = await Promise.all(rows.map(async (m) => ({
+    material: { key: m.key, name: m.name, kind: m.kind },
+    values: valuesOf === "all" || valuesOf === m.key ? await materialCheckValues(ex, m.id) : null,
+  })));
+  return out
+    .filter((s) => s.values === null || s.values.some((v) => v.quantityKey === "lattice_a" && v.temperatureK !== null && Number(v.temperatureK) === 300))
+    .map((s) => ({ material: s.material, values: s.values ?? [] }));
 }
 
 export type DerivedValuesPage = { derived: DerivedValuesData; form: DerivedForm };
@@ -70,7 +79,7 @@ export async function loadDerivedValues(materialKey: string, params: URLSearchPa
   const [values, endMembers, substrates] = await Promise.all([
     materialCheckValues(ex, material.id),
     endMembersOf(ex, material),
-    substrateCandidates(ex, material.id),
+    substrateCandidates(ex, material.id, material.kind === "alloy" ? "all" : request.substrateKey),
   ]);
   const derived = deriveMaterialValues(
     {
