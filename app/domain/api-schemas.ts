@@ -275,3 +275,67 @@ export function slugFromName(name: string): string {
     .slice(0, 80)
     .replace(/-+$/, "");
 }
+
+export const evaluateQuerySchema = z.object({
+  temperature: z.string().meta({ description: "Temperature in K, 0 to 2000.", example: "77" }),
+  material: z.string().optional().meta({ description: "A material key of the release; without it, every material of the release.", example: "AlGaAs" }),
+  x: z.string().optional().meta({ description: "Composition of an alloy, 0 to 1: the fraction of end member A (AlAs in Al(x)Ga(1-x)As). Needed with an alloy.", example: "0.3" }),
+  substrate: z.string().optional().meta({ description: "A material of the release with a lattice constant at 300 K: adds the lattice mismatch (and, for an alloy, the lattice-matched composition).", example: "GaAs" }),
+  missingBowing: z.enum(["name", "linear"]).optional().meta({ description: "\"name\" (default): a missing bowing parameter is named under missing; \"linear\": interpolate linearly instead, and say so." }),
+  format: z.enum(["json", "csv"]).optional().meta({ description: "json (default) or csv (a download, with the release hash in its preamble)." }),
+});
+
+const evaluatedInput = z.object({
+  material: z.string().nullable().meta({ description: "Whose value, when not the evaluated material's own (an end member, the substrate)." }),
+  symbol: z.string(),
+  value: decimal,
+  unit: z.string(),
+  uncertainty: decimal.nullable().meta({ description: "The revision's standard uncertainty; null when it states none (\"± not stated\", never zero)." }),
+  uncertaintyStated: z.boolean(),
+  sensitivity: z.string().meta({ description: "Sensitivity coefficient ∂y/∂x_i." }),
+  contribution: z.string().nullable().meta({ description: "|∂y/∂x_i|·u(x_i) in the unit of the result; null without a stated uncertainty." }),
+  recordId: z.number().int().nullable(),
+  revisionId: z.number().int().nullable().meta({ description: "The pinned revision." }),
+  source: z.string().nullable(),
+});
+
+export const evaluatedValueSchema = z
+  .object({
+    id: z.string().meta({ description: "eg-G, eg-X, eg-L, lattice-a, kane-me, mismatch or lattice-match-x." }),
+    label: z.string(),
+    value: z.string().meta({ description: "Decimal string, 12 significant digits." }),
+    unit: z.string(),
+    standardUncertainty: z.string().nullable().meta({ description: "Combined standard uncertainty by the GUM (first order); null when no input that moves the value states one." }),
+    uncertaintyStatus: z.enum(["complete", "partial", "not-stated"]),
+    uncertaintyNotStated: z.array(z.string()).meta({ description: "The inputs that move the value but state no uncertainty." }),
+    formula: z.string(),
+    reference: z.string(),
+    warnings: z.array(z.string()),
+    stated: z.object({ value: decimal, uncertainty: decimal.nullable(), recordId: z.number().int().nullable(), revisionId: z.number().int().nullable() }).nullable()
+      .meta({ description: "A value the release states at exactly these conditions, beside the derived one." }),
+    inputs: z.array(evaluatedInput).meta({ description: "The uncertainty budget: every pinned revision the value came from." }),
+  })
+  .meta({ id: "EvaluatedValue" });
+
+export const evaluationSchema = z
+  .object({
+    schema: z.literal("bandledger.evaluation"),
+    schemaVersion: z.literal(1),
+    release: z.object({ sha256, set: z.string(), setName: z.string(), number: z.number().int(), codataEdition: z.string(), softwareVersion: z.string() })
+      .meta({ description: "The release the numbers were computed from." }),
+    evaluatedWith: z.object({ bandledgerVersion: z.string(), codataEdition: z.string(), uncertaintyMethod: z.string() }),
+    conditions: z.object({ temperatureK: decimal, material: z.string().nullable(), x: decimal.nullable(), substrate: z.string().nullable(), missingBowing: z.enum(["name", "linear"]) }),
+    caution: z.string(),
+    materials: z.array(z.object({
+      key: z.string(),
+      name: z.string(),
+      formula: z.string(),
+      kind: z.enum(["element", "binary", "alloy"]),
+      composition: decimal.nullable(),
+      endMembers: z.object({ a: z.string(), b: z.string() }).nullable(),
+      substrate: z.string().nullable(),
+      values: z.array(evaluatedValueSchema),
+      missing: z.array(z.string()).meta({ description: "What could not be derived from the release, and why." }),
+    })),
+  })
+  .meta({ id: "Evaluation", description: "A release evaluated at a temperature (and composition, substrate). The same conditions give the same bytes." });

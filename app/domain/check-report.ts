@@ -23,6 +23,8 @@ export interface CheckValue {
   /** Exact decimal in the quantity's canonical unit; null while a proposal has no readable value. */
   value: string | null;
   unit: string;
+  /** The stated standard uncertainty in the same unit; null or absent when the revision states none. */
+  uncertainty?: string | null;
   recordId: number | null;
   revisionId: number | null;
   sourceLabel: string | null;

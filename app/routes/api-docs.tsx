@@ -33,7 +33,7 @@ const NFE_EXAMPLE = '{"periodAngstrom":5.65325,"coefficients":[{"n":1,"valueEv":
 
 function curlFor(e: Endpoint, baseUrl: string): string {
   const path = e.path.replace(/\{(\w+)\}/g, (_, name: string) => EXAMPLE_PARAMS[name] ?? name);
-  const query = e.path.endsWith("/download") ? "?format=csv" : e.path.endsWith("/compare") ? "?from=2&to=3" : e.path.endsWith("/records") ? "?material=GaAs&quantity=eg&limit=50" : "";
+  const query = e.path.endsWith("/download") ? "?format=csv" : e.path.endsWith("/evaluate") ? "?temperature=77&material=AlGaAs&x=0.3&substrate=GaAs" : e.path.endsWith("/compare") ? "?from=2&to=3" : e.path.endsWith("/records") ? "?material=GaAs&quantity=eg&limit=50" : "";
   const auth = e.path.endsWith("openapi.json") ? "" : ' -H "Authorization: Bearer $BANDLEDGER_TOKEN"';
   if (e.method === "POST" && e.path.endsWith("/nfe")) return `curl -s${auth} -H "Content-Type: application/json" -d '${NFE_EXAMPLE}' ${baseUrl}${path}`;
   if (e.method === "POST") return `# from a signed-in browser page only; tokens are read-only`;

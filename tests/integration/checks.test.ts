@@ -272,6 +272,17 @@ describe("derived values on material pages", () => {
     expect(d.composition).toBeCloseTo(0.534, 3);
   });
 
+  it("InAs on GaAs: Δa/a = (6.0583 − 5.65325)/5.65325 = 7.16 % and the Kane mass, with uncertainties said to be not stated [V01 calc, Kane57]", async () => {
+    const d = (await derived.loadDerivedValues("InAs", params({ temperature: "300", substrate: "GaAs" })))!.derived;
+    expect(d.substrateKey).toBe("GaAs");
+    expect(Number(d.mismatch!.value)).toBeCloseTo((100 * (6.0583 - 5.65325)) / 5.65325, 9);
+    const eg = 0.417 - (0.276e-3 * 300 ** 2) / (300 + 93);
+    expect(Number(d.kaneMass!.value)).toBeCloseTo(1 / (1 - 5.8 + (21.5 * (eg + (2 * 0.39) / 3)) / (eg * (eg + 0.39))), 9);
+    expect(d.kaneMass!.uncertainty).toMatchObject({ standard: null, status: "not-stated" });
+    // Without a substrate asked for, a binary's page derives no mismatch.
+    expect((await derived.loadDerivedValues("InAs", params({ temperature: "300" })))!.derived.mismatch).toBeNull();
+  });
+
   it("keeps what was typed and says what is wrong at the field; an unknown material is null", async () => {
     const page = await derived.loadDerivedValues("GaAs", params({ temperature: "hot", x: "2" }));
     expect(page!.form.errors.temperature).toMatch(/not a decimal number/);

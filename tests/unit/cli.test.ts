@@ -188,6 +188,18 @@ describe("bandledger, its dispatcher in process", () => {
     [["calc", "bowing", "--eg-a", "3.099", "--eg-b", "1.519", "--c0", "-0.127", "--x", "1.5"], /--x must be at most 1/],
     [["calc", "kane", "--ep", "28.8", "--f", "-1.94", "--eg", "zero", "--delta", "0.341"], /--eg must be a number/],
     [["calc", "vegard", "--a-a", "5.6611", "--a-b", "5.65325", "--x", "0.3", "extra"], /unexpected argument "extra"/],
+    // evaluate refuses its arguments before it reaches a server (the token is a well-formed placeholder).
+    [["evaluate", "--temperature", "77", "--out", "x.json", "--token", "blt_t"], /name the release to evaluate/],
+    [["evaluate", "hemt-baseline", "--temperature", "77", "--out", "x.json", "--token", "blt_t"], /name the release as <set>@<release>, e\.g\. hemt-baseline@3/],
+    [["evaluate", "hemt-baseline@0", "--temperature", "77", "--out", "x.json", "--token", "blt_t"], /name the release as/],
+    [["evaluate", "hemt-baseline@3", "--out", "x.json", "--token", "blt_t"], /--temperature is required/],
+    [["evaluate", "hemt-baseline@3", "--temperature", "-3", "--out", "x.json", "--token", "blt_t"], /--temperature: choose a temperature from 0 to 2000 K/],
+    [["evaluate", "hemt-baseline@3", "--temperature", "cold", "--out", "x.json", "--token", "blt_t"], /--temperature: .*not a decimal number/],
+    [["evaluate", "hemt-baseline@3", "--temperature", "77", "--x", "1.01", "--out", "x.json", "--token", "blt_t"], /--x: the composition x lies between 0 and 1/],
+    [["evaluate", "hemt-baseline@3", "--temperature", "77", "--missing-bowing", "cubic", "--out", "x.json", "--token", "blt_t"], /--missing-bowing/],
+    [["evaluate", "hemt-baseline@3", "--temperature", "77", "--token", "blt_t"], /--out is required/],
+    [["evaluate", "hemt-baseline@3", "--temperature", "77", "--out", "x", "--format", "xml", "--token", "blt_t"], /--format must be json or csv/],
+    [["pull", "hemt-baseline@three", "--out", "x.json", "--token", "blt_t"], /name the release as <set>@<release>/],
   ];
   for (const [args, message] of bad) {
     it(`exits 2 with one line naming the problem: ${args.join(" ")}`, async () => {

@@ -1,7 +1,7 @@
 import { OpenAPIRegistry, OpenApiGeneratorV31, type RouteConfig } from "@asteasolutions/zod-to-openapi";
 import { z } from "zod";
 import {
-  apiErrorSchema, comparisonSchema, compareQuerySchema, downloadQuerySchema, freezeBodySchema, materialListSchema, nfeCheckBodySchema,
+  apiErrorSchema, comparisonSchema, evaluateQuerySchema, evaluationSchema, compareQuerySchema, downloadQuerySchema, freezeBodySchema, materialListSchema, nfeCheckBodySchema,
   nfeCheckResultSchema, quantityListSchema, recordHistorySchema, recordPageSchema, recordsQuerySchema, releaseDetailSchema, releaseDocumentSchema, releaseSummarySchema,
   setDetailSchema, setListSchema,
 } from "~/domain/api-schemas";
@@ -112,6 +112,20 @@ function buildRegistry(): OpenAPIRegistry {
         content: { "application/json": { schema: releaseDocumentSchema }, "text/csv": { schema: z.string().meta({ description: "The CSV form (docs/release-format.md)." }) } },
       },
       304: { description: "Not modified: the If-None-Match matched the ETag." },
+      ...errors(400, 404, ...READ_ERRORS),
+    },
+  });
+  registry.registerPath({
+    method: "get", path: "/api/v1/sets/{slug}/releases/{number}/evaluate", tags: ["sets"], summary: "A release evaluated at a temperature, composition and substrate",
+    description:
+      "Every derived value the release's pinned revisions give: Eg at Γ, X and L by Varshni (with bowing for an alloy), a(T) (Vegard for an alloy), the Kane mass, and on a substrate the lattice mismatch and an alloy's lattice-matched x; each with its formula, the revisions it used and a GUM uncertainty budget (inputs without a stated uncertainty are named, never taken as zero). What cannot be derived is named under missing. The same conditions give the same bytes as `bandledger evaluate`.",
+    request: { params: releaseParams, query: evaluateQuerySchema },
+    responses: {
+      200: {
+        description: "The evaluation; X-Bandledger-Release-Sha256 names the release it was computed from.",
+        headers: { "X-Bandledger-Release-Sha256": { description: "The release's content hash.", schema: { type: "string" } } },
+        content: { "application/json": { schema: evaluationSchema }, "text/csv": { schema: z.string().meta({ description: "The CSV form: a # preamble with the release hash and the conditions, then one row per value." }) } },
+      },
       ...errors(400, 404, ...READ_ERRORS),
     },
   });

@@ -42,7 +42,7 @@ export async function loadCheckQuantities(ex: Executor = db()): Promise<CheckQua
 export async function materialCheckValues(ex: Executor, materialId: number): Promise<CheckValue[]> {
   const rows = await currentValuesOfMaterial(ex, materialId);
   return rows.map((r) => ({
-    quantityKey: r.quantityKey, valley: r.valley, temperatureK: r.temperatureK, composition: r.composition, value: r.value, unit: r.unit,
+    quantityKey: r.quantityKey, valley: r.valley, temperatureK: r.temperatureK, composition: r.composition, value: r.value, unit: r.unit, uncertainty: r.uncertainty,
     recordId: r.recordId, revisionId: r.revisionId, sourceLabel: r.source?.label ?? null, validFromK: r.validFromK, validToK: r.validToK,
     potentialCoefficients: r.potentialCoefficients, periodAngstrom: r.periodAngstrom,
   }));
