@@ -44,7 +44,7 @@ export const SYMMETRY_POINTS = {
 /** Bands are numbered from 1; the four lowest are filled (eight valence electrons per primitive cell). */
 export const VALENCE_BANDS = 4;
 export const DEFAULT_EPM_CONVERGENCE_EV = 1e-3;
-export const DEFAULT_EPM_MAX_PLANE_WAVES = 400;
+export const DEFAULT_EPM_MAX_PLANE_WAVES = 283;
 /** A three-form-factor local model is fitted to a few transitions; see the check page's note. */
 export const DEFAULT_EPM_TOLERANCE_EV = 0.15;
 /** The first basis tried: every G with |G|² ≤ 11, the reach of the form factors (51 plane waves). */
@@ -256,7 +256,7 @@ export function registryGaps(basis: PlaneWaveBasis): RegistryGaps {
 export interface EpmConvergenceOptions {
   /** The basis grows shell by shell until Eg(Γ), Eg(X) and Eg(L) each move by less than this; default 1 meV. */
   convergenceEv?: number;
-  /** The largest basis tried; default 400 plane waves. */
+  /** The largest basis tried; default 283 plane waves (|G|² ≤ 40), which bounds the work one check can ask for. */
   maxPlaneWaves?: number;
 }
 
