@@ -5,11 +5,10 @@ import path from "node:path";
 import { parseArgs } from "node:util";
 import autocannon from "autocannon";
 import mysql from "mysql2/promise";
-import { createDatabase, dropDatabase, runMigrations } from "~/.server/db/migrate";
 import { startSink } from "~/.server/mail/sink";
 import { generateSyntheticRegistry } from "../../seed-data/synthetic";
 import { startAppServer, type AppServer } from "../support/app-server";
-import { baseDatabaseUrl } from "../support/env";
+import { createTestDatabase } from "../support/db";
 import { sessionCookieValue } from "../support/session";
 
 // npm run bench: the production build over generated registries of two sizes, driven by autocannon from this
@@ -33,10 +32,8 @@ const SET_SIZE = Number(args["set-size"]);
 type Row = { name: string; requestsPerSecond: number; p50Ms: number; p99Ms: number; non2xx: number; errors: number };
 
 async function prepare(revisions: number) {
-  const base = baseDatabaseUrl();
   const name = `bandledger_test_bench_${revisions}_${process.pid}`;
-  const url = await createDatabase(base, name);
-  await runMigrations(url);
+  const { url, drop } = await createTestDatabase(name);
   // At least SET_SIZE records at every size (one revision each at 1,000), so the frozen set and a filtered page
   // hold the same number of values in both runs and the growth ratio compares like with like.
   const summary = await generateSyntheticRegistry(url, { revisions, revisionsPerRecord: Math.max(1, Math.min(3, Math.floor(revisions / SET_SIZE))) });
@@ -53,7 +50,7 @@ async function prepare(revisions: number) {
   await conn.query("INSERT INTO api_tokens (user_id, name, token_hash, prefix) VALUES (?, 'bench', ?, ?)", [admin.id, hash, prefix]);
   const [[anyMaterial]] = (await conn.query("SELECT f.`key` AS family FROM materials m JOIN material_families f ON f.id = m.family_id ORDER BY m.id LIMIT 1")) as unknown as [{ family: string }[]];
   await conn.end();
-  return { base, name, url, adminId: admin.id, token, family: anyMaterial.family, summary };
+  return { drop, name, url, adminId: admin.id, token, family: anyMaterial.family, summary };
 }
 
 async function freeze(url: string, adminId: number) {
@@ -109,7 +106,7 @@ if (args.only) {
   const written = await freeze(p.url, p.adminId);
   const mailboxDir = mkdtempSync(path.join(os.tmpdir(), "bl-bench-mail-"));
   const sink = await startSink({ port: 0, dir: mailboxDir });
-  const server = await startAppServer({ databaseUrl: p.url, smtpPort: sink.port, mailboxDir, extraEnv: { BANDLEDGER_API_RATE_PER_MINUTE: "100000000" } });
+  const server = await startAppServer({ databaseUrl: p.url, smtpPort: sink.port, mailboxDir, extraEnv: { BANDLEDGER_API_RATE_PER_MINUTE: "100000000", BANDLEDGER_CHECK_RATE_PER_MINUTE: "100000000" } });
   try {
     console.error(`bench: measuring at ${size} revisions (${CONNECTIONS} connections, ${DURATION} s per row)…`);
     const rows = await measure(server, { cookie: `__bandledger=${await sessionCookieValue(p.adminId)}`, token: p.token, family: p.family, sha256: written.sha256 });
@@ -117,7 +114,7 @@ if (args.only) {
   } finally {
     await server.stop();
     await sink.close();
-    await dropDatabase(p.base, p.name);
+    await p.drop();
   }
   process.exit(0);
 }

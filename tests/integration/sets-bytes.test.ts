@@ -10,7 +10,7 @@ import { startDemoServer, type DemoServer } from "./api-fixture";
 let demo: DemoServer;
 let token: string;
 
-type Download = { status: number; bytes: Buffer; etag: string | null; cacheControl: string | null; disposition: string | null; digest: string | null };
+type Download = { status: number; bytes: Buffer; etag: string | null; cacheControl: string | null; vary: string | null; disposition: string | null; digest: string | null };
 
 async function download(pathname: string, headers: Record<string, string> = {}): Promise<Download> {
   const r = await fetch(demo.url + pathname, { headers: { Authorization: `Bearer ${token}`, ...headers } });
@@ -19,6 +19,7 @@ async function download(pathname: string, headers: Record<string, string> = {}):
     bytes: Buffer.from(await r.arrayBuffer()),
     etag: r.headers.get("etag"),
     cacheControl: r.headers.get("cache-control"),
+    vary: r.headers.get("vary"),
     disposition: r.headers.get("content-disposition"),
     digest: r.headers.get("repr-digest"),
   };
@@ -55,7 +56,13 @@ describe("a frozen release downloads as the same bytes", () => {
     const verified = await verifyReleaseText(json.bytes.toString("utf8"));
     expect(verified).toMatchObject({ ok: true, sha256: meta.sha256 });
     expect(json.etag).toBe(`"${meta.sha256}"`);
-    expect(json.cacheControl).toBe("public, max-age=31536000, immutable");
+    // Members only: the member's own client keeps it for good, a shared cache never does, and the answer varies by credentials.
+    expect(json.cacheControl).toBe("private, max-age=31536000, immutable");
+    for (const download of first.values()) {
+      expect(download.cacheControl).toBe("private, max-age=31536000, immutable");
+      expect(download.vary).toMatch(/Cookie/);
+      expect(download.vary).toMatch(/Authorization/);
+    }
     expect(json.disposition).toBe('attachment; filename="hemt-baseline-r3.json"');
     expect(json.digest).toBe(`sha-256=:${createHash("sha256").update(json.bytes).digest("base64")}:`);
     const csv = first.get(PATHS[1])!;
@@ -89,7 +96,7 @@ describe("a frozen release downloads as the same bytes", () => {
 
   it("after a mariadb-dump backup and a restore", async () => {
     const file = path.join(mkdtempSync(path.join(os.tmpdir(), "bl-bytes-")), "dump.sql");
-    const env = { ...process.env, DATABASE_URL: demo.t.url };
+    const env = { ...process.env, DATABASE_URL: demo.t.url, MIGRATION_DATABASE_URL: demo.t.adminUrl };
     execFileSync("bash", ["scripts/backup.sh", "backup", file], { env, stdio: "pipe" });
     await demo.server.stop();
     await demo.t.pool.end();

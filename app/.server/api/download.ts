@@ -4,7 +4,10 @@ import { requireUser } from "../permissions";
 import { servedRelease } from "../sets/release-cache";
 import { requireApiCaller, type ApiCaller } from "./guard";
 
-export const IMMUTABLE = "public, max-age=31536000, immutable";
+// Members only: a shared cache must never hand a release to someone who did not sign in or show a token, while
+// the member's own browser or pipeline may keep it for good (it never changes). The answer varies by credentials.
+export const IMMUTABLE = "private, max-age=31536000, immutable";
+export const VARY = "Cookie, Authorization";
 
 /** A download's caller: a bearer token (counted against the API limit) or the browser session (else to sign-in). */
 export async function requireDownloadCaller(request: Request): Promise<ApiCaller> {
@@ -20,7 +23,7 @@ export function matchesIfNoneMatch(header: string | null, etag: string): boolean
 
 /**
  * The stored bytes of a release, exactly as frozen: ETag is the hash of what is served (the content hash for JSON,
- * the CSV's own hash for CSV), cached for a year as immutable, 304 for a matching If-None-Match.
+ * the CSV's own hash for CSV), kept for a year as immutable by the member's own client only, 304 for a matching If-None-Match.
  */
 export async function releaseDownloadResponse(request: Request, caller: ApiCaller, slug: string, number: number, format: ReleaseFormat): Promise<Response> {
   const release = await servedRelease(slug, number);
@@ -28,6 +31,7 @@ export async function releaseDownloadResponse(request: Request, caller: ApiCalle
   const headers = new Headers({
     ETag: file.etag,
     "Cache-Control": IMMUTABLE,
+    Vary: VARY,
     "X-Bandledger-Release-Sha256": release.sha256,
     "X-Content-Type-Options": "nosniff",
   });

@@ -104,7 +104,8 @@ function buildRegistry(): OpenAPIRegistry {
         description: "The release file, with Content-Disposition naming it <slug>-r<number>.<format>.",
         headers: {
           ETag: { description: "\"<sha256>\"", schema: { type: "string" } },
-          "Cache-Control": { description: "public, max-age=31536000, immutable", schema: { type: "string" } },
+          "Cache-Control": { description: "private, max-age=31536000, immutable (members only: never kept by a shared cache)", schema: { type: "string" } },
+          Vary: { description: "Cookie, Authorization", schema: { type: "string" } },
           "Repr-Digest": { description: "sha-256 of the bytes served (RFC 9530).", schema: { type: "string" } },
           "X-Bandledger-Release-Sha256": { description: "The release's content hash, for both formats.", schema: { type: "string" } },
         },
