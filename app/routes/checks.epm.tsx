@@ -2,6 +2,7 @@ import { useEffect, useRef, useState } from "react";
 import { data, Form, Link, useFetcher } from "react-router";
 import type { Route } from "./+types/checks.epm";
 import { blankFormFactors, epmQueryOf, runEpmPage, type EpmFormValues, type EpmPageData } from "~/.server/checks";
+import { guardSolveOrRespond } from "~/.server/checks/solve-guard";
 import { requireUser } from "~/.server/permissions";
 import { BandStructureChart } from "~/components/charts";
 import { VerdictBadge } from "~/components/checks";
@@ -39,9 +40,9 @@ const EXAMPLES: { label: string; hint: string; values: EpmFormValues }[] = [
 ];
 
 export async function loader({ request }: Route.LoaderArgs) {
-  await requireUser(request);
+  const user = await requireUser(request);
   const params = new URL(request.url).searchParams;
-  const page = runEpmPage(params);
+  const page = await guardSolveOrRespond(user.id, () => runEpmPage(params), "page");
   const body = { ...page, examples: EXAMPLES.map((e) => ({ label: e.label, hint: e.hint, query: epmQueryOf(e.values).toString() })) };
   // A query with wrong inputs is a bad request: the page shows the messages at their fields with a 400.
   const live = params.get("live") === "1";

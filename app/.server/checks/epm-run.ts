@@ -1,50 +1,12 @@
 import type { z } from "zod";
 import type { epmCheckResultSchema } from "~/domain/api-schemas";
 import { toDecimalString } from "~/domain/decimal";
-import {
-  CODATA_EDITION,
-  FORM_FACTOR_KEYS,
-  GAP_POINTS,
-  type PseudopotentialCheck,
-  type PseudopotentialCheckInput,
-  checkPseudopotential,
-} from "~/domain/physics";
+import { memoizedPseudopotentialCheck } from "~/domain/checks/pseudopotential";
+import { CODATA_EDITION, FORM_FACTOR_KEYS, GAP_POINTS, type PseudopotentialCheck } from "~/domain/physics";
 
 export type EpmCheckResult = z.infer<typeof epmCheckResultSchema>;
 
-// One check diagonalises a few dozen matrices of up to 283 plane waves (a quarter of a second to seconds on a
-// loaded machine), and the same material is checked again on every record page, review page and keystroke of a
-// proposal: the last results are kept, keyed by every input. The function is pure, so a kept result is exact.
-const MEMO_SIZE = 64;
-const memo = new Map<string, PseudopotentialCheck>();
-
-function keyOf(input: PseudopotentialCheckInput): string {
-  return JSON.stringify([
-    input.structure,
-    input.latticeAngstrom,
-    FORM_FACTOR_KEYS.map((k) => input.formFactorsEv[k] ?? null),
-    GAP_POINTS.map((p) => input.stated?.[p] ?? null),
-    input.toleranceEv ?? null,
-    input.convergenceEv ?? null,
-    input.maxPlaneWaves ?? null,
-    input.bandPoints ?? 0,
-  ]);
-}
-
-/** checkPseudopotential with the last results kept (least recently used out first). */
-export function memoizedPseudopotentialCheck(input: PseudopotentialCheckInput): PseudopotentialCheck {
-  const key = keyOf(input);
-  const kept = memo.get(key);
-  if (kept) {
-    memo.delete(key);
-    memo.set(key, kept);
-    return kept;
-  }
-  const check = checkPseudopotential(input);
-  memo.set(key, check);
-  if (memo.size > MEMO_SIZE) memo.delete(memo.keys().next().value!);
-  return check;
-}
+export { memoizedPseudopotentialCheck };
 
 const d = (x: number) => toDecimalString(x);
 const tenthMeV = (x: number) => Math.round(x * 1e4) / 1e4;
