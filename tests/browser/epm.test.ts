@@ -1,5 +1,5 @@
 import { drizzle } from "drizzle-orm/mysql2";
-import { eq } from "drizzle-orm";
+import { and, eq } from "drizzle-orm";
 import type { BrowserContext, Locator, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
 import { createPool } from "~/.server/db/client";
@@ -114,6 +114,28 @@ describe("the crystal check page", () => {
     await expect(page.locator('[data-epm-gap="gamma"] [data-verdict]').getAttribute("data-verdict")).resolves.toBe("pass");
     await expect(page.locator('[data-epm-gap="x"] [data-verdict]').getAttribute("data-verdict")).resolves.toBe("warn");
     await shoot(page, "checks-epm-gaas", page.locator("[data-epm-result]"));
+    await page.close();
+  });
+
+  it("on GaAs's V_S(3) record page [CB66]: the three gap results with the caution, and a link to the band structure", async () => {
+    const [row] = await db
+      .select({ id: schema.records.id })
+      .from(schema.records)
+      .innerJoin(schema.materials, eq(schema.materials.id, schema.records.materialId))
+      .innerJoin(schema.quantities, eq(schema.quantities.id, schema.records.quantityId))
+      .where(and(eq(schema.materials.key, "GaAs"), eq(schema.quantities.key, "ff_vs3")));
+    const page = await browser.newPage();
+    await page.goto(`${appUrl}/records/${row.id}`);
+    const report = page.locator("[data-check-report]");
+    await report.locator('[data-check="epm"]').first().waitFor();
+    await expect(report.locator('[data-check="epm"]').count()).resolves.toBe(3);
+    await expectVisible(report.locator("[data-epm-caution]"));
+    await shoot(page, "record-gaas-vs3-checks", report);
+    await report.getByRole("link", { name: "band structure in the crystal check" }).first().click();
+    await page.waitForURL(/\/checks\/epm\?structure=zincblende/);
+    await page.locator("[data-epm-result]").waitFor();
+    await expect(page.locator("[data-epm-fundamental]").getAttribute("data-epm-fundamental")).resolves.toBe("Γ");
+    await expect(page.getByLabel("V_S(3)").inputValue()).resolves.toBe("-3.12930941828862");
     await page.close();
   });
 
