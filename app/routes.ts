@@ -45,6 +45,7 @@ export default [
 
   // physics checks
   route("checks/nfe", "routes/checks.nfe.tsx"),
+  route("checks/epm", "routes/checks.epm.tsx"),
   route("checks/report", "routes/checks.report.ts"),
   route("admin/tolerances", "routes/admin.tolerances.tsx"),
 
@@ -70,6 +71,7 @@ export default [
   route("api/v1/sets/:slug/releases/:number/evaluate", "routes/api.v1.release-evaluate.ts"),
   route("api/v1/sets/:slug/compare", "routes/api.v1.set-compare.ts"),
   route("api/v1/checks/nfe", "routes/api.v1.checks.nfe.ts"),
+  route("api/v1/checks/epm", "routes/api.v1.checks.epm.ts"),
   route("api/v1/*", "routes/api.v1.not-found.ts"),
 
   route("*", "routes/not-found.tsx"),

@@ -1,16 +1,17 @@
 import { toDecimalString } from "./decimal";
 import { compareDecimalStrings, normalisedDecimalKey, parseExactDecimal } from "./exact-decimal";
 import {
-  bowedGapAtTemperature, checkKaneMass, checkNfeGap, CODATA_EDITION, DEFAULT_KANE_RELATIVE_TOLERANCE, DEFAULT_NFE_TOLERANCE_EV,
+  bowedGapAtTemperature, checkKaneMass, checkNfeGap, CODATA_EDITION, DEFAULT_EPM_TOLERANCE_EV, DEFAULT_KANE_RELATIVE_TOLERANCE, DEFAULT_NFE_TOLERANCE_EV,
   varshniGap, verdictFromResidual, type FittedRangeK, type Verdict, type VarshniParameters,
 } from "./physics";
 import { VALLEY_LABELS, type Valley } from "./quantities";
+import { EPM_TOLERANCE_QUANTITY, FORM_FACTOR_QUANTITIES, pseudopotentialChecks, type EpmDetail } from "./checks/pseudopotential";
 import { displayUnit } from "./units";
 
 // The check report of one value (a record's current revision, or what a proposal would make it): which of the
 // consistency checks apply, what each one took from the ledger, and whether the numbers agree.
 
-export type CheckKind = "range" | "nfe" | "varshni" | "kane" | "bowing";
+export type CheckKind = "range" | "nfe" | "varshni" | "kane" | "bowing" | "epm";
 export type { Verdict };
 
 /** One stated value the checks may use: a record's current revision, or what a proposal would make it. */
@@ -49,6 +50,7 @@ export interface CheckMaterial {
   key: string;
   name: string;
   kind: "element" | "binary" | "alloy";
+  structure?: "diamond" | "zinc_blende" | "wurtzite";
 }
 
 export interface CheckReportInputs {
@@ -110,6 +112,7 @@ export interface CheckResult {
   notes: string[];
   codataEdition: string;
   nfe?: NfeDetail;
+  epm?: EpmDetail;
 }
 
 export interface CheckReport {
@@ -137,12 +140,15 @@ export const DEFAULT_TOLERANCES = {
   eg: String(DEFAULT_NFE_TOLERANCE_EV),
   /** Relative (a fraction of the computed mass): the Kane check. */
   me: String(DEFAULT_KANE_RELATIVE_TOLERANCE),
+  /** Absolute, eV: the pseudopotential check (on the V_S(3) row). */
+  [EPM_TOLERANCE_QUANTITY]: String(DEFAULT_EPM_TOLERANCE_EV),
 } as const;
 
 /** Which quantity's tolerance each check uses, and how it reads. */
 export const TOLERANCE_RULES = [
   { quantityKey: "eg", mode: "absolute", unit: "eV", usedBy: "nearly-free-electron, Varshni and bowing checks", max: "1" },
   { quantityKey: "me", mode: "relative", unit: "", usedBy: "Kane check (a fraction of the computed mass: 0.02 is 2 %)", max: "0.5" },
+  { quantityKey: EPM_TOLERANCE_QUANTITY, mode: "absolute", unit: "eV", usedBy: "pseudopotential check of the gaps at Γ, X, L from the form factors (a three-form-factor model is fitted to a few transitions)", max: "1" },
 ] as const;
 
 const RANK: Record<Verdict, number> = { none: 0, pass: 1, warn: 2, fail: 3 };
@@ -184,7 +190,7 @@ function conditionsText(v: Pick<CheckValue, "valley" | "temperatureK" | "composi
   return parts.join(", ");
 }
 
-const TEMPERATURE_INDEPENDENT = new Set(["varshni_alpha", "varshni_beta", "lattice_dadt", "delta_so", "ep", "kane_f", "vbo", "eg_bowing_c0", "eg_bowing_c1"]);
+const TEMPERATURE_INDEPENDENT = new Set(["varshni_alpha", "varshni_beta", "lattice_dadt", "delta_so", "ep", "kane_f", "vbo", "eg_bowing_c0", "eg_bowing_c1", ...Object.values(FORM_FACTOR_QUANTITIES)]);
 
 /** The current value of a quantity under exact conditions, or null. */
 export function findCheckValue(
@@ -572,6 +578,7 @@ export function buildCheckReport(inputs: CheckReportInputs): CheckReport {
     const kane = kaneCheck(ctx, notRun);
     if (kane) results.push(kane);
     results.push(...bowingChecks(ctx, notRun));
+    results.push(...pseudopotentialChecks({ material: inputs.material, subject, values, notRun, toleranceEv: toleranceOf(inputs, EPM_TOLERANCE_QUANTITY), inputOf: (v) => inputOf(ctx, v) }));
   }
   return {
     origin: inputs.origin,

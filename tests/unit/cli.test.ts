@@ -6,7 +6,8 @@ import { main } from "../../app/cli/main";
 // The real command, as `npm run bandledger -- …` runs it. Check values from /work/shared/reference/check-values.md:
 // [V01] Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001); [Var67] Varshni, Physica 34, 149 (1967);
 // [Kane57] Kane, J. Phys. Chem. Solids 1, 249 (1957); [Vegard21] Vegard, Z. Phys. 5, 17 (1921);
-// [AS] Abramowitz & Stegun, Table 20.1; "calc" = computed from the listed inputs with the formula named.
+// [AS] Abramowitz & Stegun, Table 20.1; [CB66] Cohen & Bergstresser, Phys. Rev. 141, 789 (1966), table of form
+// factors (values and table number from memory); "calc" = computed from the listed inputs with the formula named.
 const root = fileURLToPath(new URL("../..", import.meta.url));
 
 interface Run {
@@ -211,3 +212,108 @@ describe("bandledger, its dispatcher in process", () => {
     });
   }
 });
+
+// Cohen & Bergstresser's form factors (Ry) and lattice constants (Å) [CB66].
+const SI = ["--structure", "diamond", "--lattice", "5.43", "--form-factor", "S3:-0.21", "--form-factor", "S8:0.04", "--form-factor", "S11:0.08"];
+const GAAS_SYMMETRIC = ["--form-factor", "S3:-0.23", "--form-factor", "S8:0.01", "--form-factor", "S11:0.06"];
+const GAAS = ["--structure", "zincblende", "--lattice", "5.64", ...GAAS_SYMMETRIC, "--form-factor", "A3:0.07", "--form-factor", "A4:0.05", "--form-factor", "A11:0.01"];
+
+describe("bandledger epm", { timeout: 60_000 }, () => {
+  it("the real command: silicon's Γ gap is 3.4 eV [CB66, from memory] and its fundamental gap lies along Δ", async () => {
+    const out = await json("epm", ...SI, "--stated-gamma", "3.4");
+    expect(Object.keys(out)).toEqual(["gamma", "x", "l", "fundamental", "planeWaves", "verdict"]);
+    const gamma = out.gamma as Record<string, unknown>;
+    expect(Object.keys(gamma)).toEqual(["gapEv", "statedEv", "residualEv", "verdict"]);
+    for (const key of ["gapEv", "residualEv"]) expect(significantDigits(gamma[key] as string)).toBe(12);
+    // The tolerance of the domain tests: half the printed 0.1 eV, plus the spread of their ~90-plane-wave basis.
+    expect(Math.abs(Number(gamma.gapEv) - 3.4)).toBeLessThan(0.1);
+    expect(gamma.verdict).toBe("pass");
+    expect(Object.keys(out.l as object)).toEqual(["gapEv"]);
+    const x = out.x as Record<string, Record<string, string>>;
+    expect(Math.abs(Number(x.gammaXMinimum.fraction) - 0.85)).toBeLessThan(0.01);
+    expect(out.fundamental).toEqual({ gapEv: x.gammaXMinimum.gapEv, valley: "Δ" });
+    expect(Number.isInteger(out.planeWaves)).toBe(true);
+    expect(out.verdict).toBe("pass");
+  });
+
+  it("reads the lattice constant in nm and form factors in eV as the same crystal (1 Ry = 13.605693122994 eV [CODATA18])", async () => {
+    const angstrom = await jsonInProcess("epm", ...SI);
+    const nm = await jsonInProcess("epm", ...SI.map((a) => (a === "5.43" ? "0.543" : a)), "--lattice-unit", "nm");
+    expect(nm).toEqual(angstrom);
+    const ry = 13.605693122994;
+    const ev = await jsonInProcess("epm", "--structure", "diamond", "--lattice", "5.43", "--form-factor-unit", "ev",
+      "--form-factor", `S3:${-0.21 * ry}`, "--form-factor", `S8:${0.04 * ry}`, "--form-factor", `S11:${0.08 * ry}`);
+    for (const point of ["gamma", "x", "l"]) {
+      const a = Number((angstrom[point] as Record<string, string>).gapEv);
+      const b = Number((ev[point] as Record<string, string>).gapEv);
+      expect(Math.abs(a - b)).toBeLessThan(1e-9);
+    }
+  });
+
+  it("zinc blende with no antisymmetric form factors is diamond; GaAs [CB66] has its gap at Γ and a verdict per stated gap", async () => {
+    const diamond = await jsonInProcess("epm", "--structure", "diamond", "--lattice", "5.64", ...GAAS_SYMMETRIC);
+    const zb = await jsonInProcess("epm", "--structure", "zincblende", "--lattice", "5.64", ...GAAS_SYMMETRIC);
+    expect(zb).toEqual(diamond);
+    const gaas = await jsonInProcess("epm", ...GAAS);
+    expect((gaas.fundamental as Record<string, string>).valley).toBe("Γ");
+    const gamma = Number((gaas.gamma as Record<string, string>).gapEv);
+    const stated = await jsonInProcess("epm", ...GAAS, "--stated-gamma", String(gamma + 0.1), "--stated-l", "9", "--tolerance", "0.15");
+    expect((stated.gamma as Record<string, string>).verdict).toBe("pass");
+    expect((stated.l as Record<string, string>).verdict).toBe("fail");
+    expect(stated.verdict).toBe("fail");
+    const warn = await jsonInProcess("epm", ...GAAS, "--stated-gamma", String(gamma + 0.2));
+    expect(warn.verdict).toBe("warn");
+  });
+
+  it("prints a readable table with the gaps, the Γ–X minimum, the plane waves and the caution", async () => {
+    const run = await inProcess("epm", ...SI, "--stated-x", "1.17");
+    expect(run.code).toBe(0);
+    expect(run.stdout).toMatch(/Eg\(Γ\) = E5\(Γ\) − E4\(Γ\)\s+3\.4\d+\s+eV/);
+    expect(run.stdout).toMatch(/lowest conduction energy along Γ–X\s+0\.8\d+\s+eV/);
+    expect(run.stdout).toMatch(/plane waves\s+\d+\s+\|G\|² ≤ \d+/);
+    expect(run.stdout).toMatch(/verdict\s+warn/);
+    expect(run.stdout).toMatch(/does not replace measured values/);
+    expect((await inProcess("epm", "--help")).stdout).toMatch(/usage: bandledger epm/);
+  });
+
+  const cases: [string[], RegExp][] = [
+    [[...SI, "--form-factor", "A3:0.1"], /--form-factor A3: antisymmetric form factors need --structure zincblende/],
+    [["epm", "--structure", "diamond", "--lattice", "5.43", "--form-factor", "S4:0.1"], /--form-factor S4: unknown key/],
+    [["epm", "--structure", "zincblende", "--lattice", "5.43", "--form-factor", "A8:0.1"], /--form-factor A8: unknown key/],
+    [[...SI.map((a) => (a === "5.43" ? "0" : a))], /--lattice must be positive/],
+    [[...SI.map((a) => (a === "5.43" ? "-5.43" : a))], /--lattice must be positive/],
+    [[...SI.map((a) => (a === "5.43" ? "five" : a))], /--lattice must be a number/],
+    [[...SI.map((a) => (a === "S8:0.04" ? "S8:abc" : a))], /--form-factor S8 must be a number/],
+    [[...SI.map((a) => (a === "S8:0.04" ? "S8" : a))], /--form-factor must be key:value/],
+    [[...SI, "--form-factor", "S3:0.1"], /--form-factor S3 is given twice/],
+    [["epm", "--structure", "diamond", "--lattice", "5.43", "--form-factor", "S3:-0.21"], /--form-factor S8 is required/],
+    [[...SI.map((a) => (a === "diamond" ? "wurtzite" : a))], /--structure must be diamond or zincblende/],
+    [SI.slice(2), /--structure is required/],
+    [[...SI.slice(0, 2), ...SI.slice(4)], /--lattice is required/],
+    [[...SI, "--lattice-unit", "mile"], /--lattice-unit must be angstrom or nm/],
+    [[...SI, "--form-factor-unit", "hartree"], /--form-factor-unit must be ry or ev/],
+    [[...SI, "--stated-x", "one"], /--stated-x must be a number/],
+    [[...SI, "--stated-l", "-1"], /--stated-l must be at least 0/],
+    [[...SI, "--tolerance", "0.1"], /--tolerance needs --stated/],
+    [[...SI, "--stated-gamma", "3.4", "--tolerance", "0"], /--tolerance must be positive/],
+    [[...SI, "--frob"], /--frob/],
+  ];
+  const bad = cases.map(([args, message]): [string[], RegExp] => [args[0] === "epm" ? args : ["epm", ...args], message]);
+  for (const [args, message] of bad) {
+    it(`exits 2 with one line naming the argument: ${args.slice(1).join(" ")}`, async () => {
+      const run = await inProcess(...args);
+      expect(run.code).toBe(2);
+      expect(run.stdout).toBe("");
+      expect(run.stderr.trimEnd().split("\n")).toHaveLength(1);
+      expect(run.stderr).toMatch(message);
+    });
+  }
+
+  it("the real command exits 2 on antisymmetric form factors for diamond", async () => {
+    const run = await bandledger("epm", ...SI, "--form-factor", "A3:0.1");
+    expect(run.code).toBe(2);
+    expect(run.stderr.trimEnd().split("\n")).toHaveLength(1);
+    expect(run.stderr).toMatch(/^bandledger epm: --form-factor A3/);
+  });
+});
+

@@ -1,7 +1,7 @@
 import { OpenAPIRegistry, OpenApiGeneratorV31, type RouteConfig } from "@asteasolutions/zod-to-openapi";
 import { z } from "zod";
 import {
-  apiErrorSchema, comparisonSchema, evaluateQuerySchema, evaluationSchema, compareQuerySchema, downloadQuerySchema, freezeBodySchema, materialListSchema, nfeCheckBodySchema,
+  apiErrorSchema, comparisonSchema, evaluateQuerySchema, evaluationSchema, compareQuerySchema, downloadQuerySchema, freezeBodySchema, materialListSchema, nfeCheckBodySchema, epmCheckBodySchema, epmCheckResultSchema,
   nfeCheckResultSchema, quantityListSchema, recordHistorySchema, recordPageSchema, recordsQuerySchema, releaseDetailSchema, releaseDocumentSchema, releaseSummarySchema,
   setDetailSchema, setListSchema,
 } from "~/domain/api-schemas";
@@ -139,6 +139,15 @@ function buildRegistry(): OpenAPIRegistry {
     description: "Read-only computation: first-order 2|U_n| and the converged central-equation gap, compared with the stated gap.",
     request: { body: { content: { "application/json": { schema: nfeCheckBodySchema } } } },
     responses: { 200: json(nfeCheckResultSchema, "The check."), ...errors(400, 422, ...READ_ERRORS) },
+  });
+  registry.registerPath({
+    method: "post", path: "/api/v1/checks/epm", tags: ["checks"], summary: "Pseudopotential check of the gaps at Γ, X and L from form factors",
+    description:
+      "Read-only computation: the empirical pseudopotential method (Cohen & Bergstresser, Phys. Rev. 141, 789 (1966)) for a diamond or zinc-blende crystal, " +
+      "plane waves |G|² ≤ Gmax² grown until the gaps move by less than 1 meV, compared with the stated gaps (default tolerance 0.15 eV). " +
+      "A three-form-factor local model reproduces the main gaps to about 0.1–0.3 eV: it checks consistency and does not replace measured values.",
+    request: { body: { content: { "application/json": { schema: epmCheckBodySchema } } } },
+    responses: { 200: json(epmCheckResultSchema, "The check."), ...errors(400, 422, ...READ_ERRORS) },
   });
   registry.registerPath({
     method: "get", path: "/api/v1/openapi.json", tags: ["meta"], summary: "This description (OpenAPI 3.1)", security: [],

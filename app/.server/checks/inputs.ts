@@ -9,7 +9,7 @@ import { currentValuesOfMaterial } from "../registry/queries";
 export type MaterialRow = CheckMaterial & { id: number; familyId: number; endMemberAId: number | null; endMemberBId: number | null; formula: string; compositionVariable: string | null };
 
 const materialColumns = {
-  id: materials.id, key: materials.key, name: materials.name, kind: materials.kind, formula: materials.formula, familyId: materials.familyId,
+  id: materials.id, key: materials.key, name: materials.name, kind: materials.kind, structure: materials.structure, formula: materials.formula, familyId: materials.familyId,
   endMemberAId: materials.endMemberAId, endMemberBId: materials.endMemberBId, compositionVariable: materials.compositionVariable,
 };
 

@@ -4,4 +4,5 @@ export * from "./nfe";
 export * from "./varshni";
 export * from "./alloys";
 export * from "./kane";
-export { symmetricEigenvalues } from "./symmetric-eigenvalues";
+export { hermitianEigenvalues, symmetricEigenvalues } from "./symmetric-eigenvalues";
+export * from "./epm";
