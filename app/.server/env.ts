@@ -8,6 +8,12 @@ const projectRoot = process.cwd();
 const schema = z.object({
   NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
   DATABASE_URL: z.string().regex(/^mysql:\/\//, "DATABASE_URL must be a mysql:// URL").optional(),
+  // The nodes of a Galera cluster, comma-separated, the preferred one first; set, it takes the place of DATABASE_URL.
+  DATABASE_URLS: z
+    .string()
+    .optional()
+    .transform((v) => (v?.trim() ? v.split(",").map((u) => u.trim()).filter(Boolean) : undefined))
+    .refine((list) => !list || list.every((u) => /^mysql:\/\//.test(u)), "DATABASE_URLS must be mysql:// URLs separated by commas"),
   BANDLEDGER_DATA_DIR: z.string().default(path.join(projectRoot, ".data")),
   BANDLEDGER_DB_PORT: z.coerce.number().int().min(1).max(65535).default(3407),
   BANDLEDGER_DB_NAME: z.string().regex(/^[A-Za-z0-9_]+$/).default("bandledger"),
@@ -24,7 +30,16 @@ const schema = z.object({
   BANDLEDGER_API_RATE_PER_MINUTE: z.coerce.number().int().min(1).default(600),
 });
 
-export type Env = z.infer<typeof schema> & { databaseUrl: string; sessionSecret: string; mailboxDir: string; mailboxEnabled: boolean };
+export type Env = z.infer<typeof schema> & {
+  databaseUrl: string;
+  /** Every database the app may use, in order of preference: the DATABASE_URLS list, else the one URL. */
+  databaseUrls: string[];
+  /** DATABASE_URLS is set: the app runs on a Galera cluster (reads wait for the cluster's commits, failover on). */
+  cluster: boolean;
+  sessionSecret: string;
+  mailboxDir: string;
+  mailboxEnabled: boolean;
+};
 
 function readOrCreateSecret(dataDir: string, file: string): string {
   const p = path.join(dataDir, file);
@@ -55,10 +70,11 @@ export function env(): Env {
     throw new Error(`Bandledger cannot start, the environment is invalid:\n${lines}`);
   }
   const e = parsed.data;
-  const databaseUrl = e.DATABASE_URL ?? embeddedDatabaseUrl(e.BANDLEDGER_DATA_DIR, e.BANDLEDGER_DB_PORT, e.BANDLEDGER_DB_NAME);
+  const databaseUrls = e.DATABASE_URLS ?? [e.DATABASE_URL ?? embeddedDatabaseUrl(e.BANDLEDGER_DATA_DIR, e.BANDLEDGER_DB_PORT, e.BANDLEDGER_DB_NAME)];
+  const databaseUrl = databaseUrls[0];
   const sessionSecret = e.SESSION_SECRET ?? readOrCreateSecret(e.BANDLEDGER_DATA_DIR, "session-secret");
   const mailboxEnabled = e.BANDLEDGER_MAILBOX ? e.BANDLEDGER_MAILBOX === "on" : e.NODE_ENV !== "production";
   const mailboxDir = e.BANDLEDGER_MAILBOX_DIR ?? path.join(e.BANDLEDGER_DATA_DIR, "mailbox");
-  cached = { ...e, databaseUrl, sessionSecret, mailboxDir, mailboxEnabled };
+  cached = { ...e, databaseUrl, databaseUrls, cluster: Boolean(e.DATABASE_URLS), sessionSecret, mailboxDir, mailboxEnabled };
   return cached;
 }

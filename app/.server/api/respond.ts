@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { isDatabaseDown } from "../db/client";
 import { isSetError } from "../sets/errors";
 import { apiError } from "../tokens";
 
@@ -63,6 +64,7 @@ export async function runApi(handler: () => Promise<Response>): Promise<Response
     if (e instanceof Response) return e;
     if (isSetError(e)) return apiError(e.status, e.code, e.message, e.field);
     console.error(e);
+    if (isDatabaseDown(e)) return apiError(503, "database_unavailable", "The database is unavailable right now; try again in a few seconds.", null, { "Retry-After": "5" });
     return apiError(500, "internal_error", "The server hit an unexpected error; it has been logged.", null);
   }
 }
