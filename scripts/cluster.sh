@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # A three-node MariaDB Galera cluster on loopback, from Debian's packages (mariadb-server brings galera-4).
 # usage: scripts/cluster.sh start|stop|status|kill NODE|restart NODE|url NODE [database]|urls [database]
-#                           |migrate-url [database]|grants DATABASE|migrate
+#                           |migrate-url [database [NODE]]|grants DATABASE|migrate
 set -euo pipefail
 cd "$(dirname "$0")/.."
 ROOT=$(pwd)
@@ -397,7 +397,7 @@ urls() {
   local IFS=,
   echo "${out[*]}"
 }
-migrate_url() { echo "mysql://$MIGRATION_USER:$(cat "$MIGRATION_PASS_FILE")@127.0.0.1:$(client_port 1)/${1:-bandledger}"; }
+migrate_url() { echo "mysql://$MIGRATION_USER:$(cat "$MIGRATION_PASS_FILE")@127.0.0.1:$(client_port "${2:-1}")/${1:-bandledger}"; }
 
 # Migrations run once, through node 1 with the migration account, while all three nodes are in the cluster; then
 # the runtime account gets its table rights and an empty database gets the demo data.
@@ -409,7 +409,7 @@ migrate() {
   DATABASE_URLS='' DATABASE_URL=$(url 1 "$db") npx tsx seed-data/load.ts --if-empty
 }
 
-usage() { echo "usage: scripts/cluster.sh start|stop|status|kill NODE|restart NODE|url NODE [database]|urls [database]|migrate-url [database]|grants DATABASE|migrate" >&2; exit 2; }
+usage() { echo "usage: scripts/cluster.sh start|stop|status|kill NODE|restart NODE|url NODE [database]|urls [database]|migrate-url [database [NODE]]|grants DATABASE|migrate" >&2; exit 2; }
 node_arg() { [[ "${1:-}" =~ ^[123]$ ]] || { echo "NODE is 1, 2 or 3" >&2; exit 2; }; echo "$1"; }
 
 case "${1:-}" in
@@ -420,7 +420,7 @@ case "${1:-}" in
   restart) restart_node "$(node_arg "${2:-}")" ;;
   url) url "$(node_arg "${2:-}")" "${3:-}" ;;
   urls) urls "${2:-}" ;;
-  migrate-url) migrate_url "${2:-}" ;;
+  migrate-url) migrate_url "${2:-}" "$(node_arg "${3:-1}")" ;;
   grants) export PATH=$PATH:/usr/sbin; n=$(first_synced) || die "no node is Synced"; grant_runtime "$n" "${2:?DATABASE}" ;;
   migrate) migrate "${2:-}" ;;
   *) usage ;;

@@ -98,7 +98,43 @@ class NodeSet {
     this.failback = null;
   }
 
+  private probeConnection: { index: number; connection: Promise<mysql.Connection> } | null = null;
+
+  /**
+   * A statement on a connection of its own to the node in use, outside the pool: what the health check asks, so
+   * that a pool whose connections are all held by long transactions is not taken for a node that stopped answering.
+   */
+  async probe(statement: string): Promise<unknown> {
+    for (let attempt = 1; ; attempt++) {
+      const index = this.current;
+      if (this.probeConnection?.index !== index) {
+        this.dropProbe();
+        const connection = mysql.createConnection({ uri: this.nodes[index].url, connectTimeout: 2_000 });
+        connection.catch(() => undefined);
+        this.probeConnection = { index, connection };
+      }
+      const probe = this.probeConnection;
+      try {
+        const [rows] = await (await probe.connection).query(statement);
+        return rows;
+      } catch (e) {
+        if (this.probeConnection === probe) this.dropProbe();
+        if (!isNodeFailure(e)) throw e;
+        this.failed(index, e);
+        if (attempt >= this.nodes.length || this.nodes.length < 2) throw e;
+      }
+    }
+  }
+
+  /** Closes the probe connection (after an error, a timeout or a switch of node); the next probe opens another. */
+  dropProbe(): void {
+    const old = this.probeConnection;
+    this.probeConnection = null;
+    void old?.connection.then((c) => c.destroy(), () => undefined);
+  }
+
   async end(): Promise<void> {
+    this.dropProbe();
     this.stopWatching();
     await Promise.all(this.nodes.map((n) => n.pool?.end().catch(() => undefined)));
   }
@@ -295,6 +331,16 @@ export type NodeInUse = { index: number; of: number; label: string; switches: nu
 export function nodeInUse(): NodeInUse {
   const { nodes } = holder();
   return { index: nodes.current + 1, of: nodes.nodes.length, label: nodes.nodes[nodes.current].label, switches: nodes.switches };
+}
+
+/** The health check's statement on the node in use, on its own connection (see NodeSet.probe). */
+export function probeNode(statement: string): Promise<unknown> {
+  return holder().nodes.probe(statement);
+}
+
+/** Gives up the health check's connection, after it did not answer in time. */
+export function dropProbe(): void {
+  holder().nodes.dropProbe();
 }
 
 /** A failure of node `index` (1-based) found outside the pool, such as a status saying it left the cluster. */
