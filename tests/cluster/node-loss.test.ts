@@ -115,14 +115,21 @@ describe("a node SIGKILLed under form writes and CSV uploads through two app pro
 
     // What the clients saw, around each kill.
     const figures: string[] = [];
+    const pauses: number[] = [];
     for (const o of outages) {
       for (const app of ["a", "b"] as const) {
         const around = samples.filter((s) => s.app === app && s.at >= o.killedAt && s.at <= o.backAt + 2_000);
         const refused = around.filter((s) => s.status === 503);
         const span = refused.length ? (Math.max(...refused.map((s) => s.at)) - Math.min(...refused.map((s) => s.at - s.ms))) / 1000 : 0;
         const slowest = Math.max(0, ...around.map((s) => s.ms));
+        // The longest time in which no write of this app was saved: the cluster's pause before it drops the lost node.
+        const saved = samples.filter((s) => s.app === app && (s.what === "proposal" || s.what === "upload") && s.status === 302).map((s) => s.at).sort((x, y) => x - y);
+        const before = saved.filter((t) => t <= o.killedAt).at(-1) ?? o.killedAt;
+        const gaps = [before, ...saved.filter((t) => t > o.killedAt && t <= o.backAt + 2_000)].map((t, i, all) => (i ? t - all[i - 1] : 0));
+        const held = Math.max(0, ...gaps) / 1000;
+        pauses.push(held);
         figures.push(`node ${o.node} killed: app ${app.toUpperCase()} answered ${around.length} requests, ${refused.length} with 503 over ${span.toFixed(1)} s ` +
-          `(${JSON.stringify(countBy(refused.map((s) => s.what)))}), slowest answer ${(slowest / 1000).toFixed(1)} s`);
+          `(${JSON.stringify(countBy(refused.map((s) => s.what)))}), no write saved for ${held.toFixed(1)} s at most, slowest answer ${(slowest / 1000).toFixed(1)} s`);
       }
       figures.push(`node ${o.node}: killed at ${(o.killedAt / 1000).toFixed(1)} s, started again at ${(o.restartedAt / 1000).toFixed(1)} s, Synced at ${(o.backAt / 1000).toFixed(1)} s by ${o.transfer}`);
     }

@@ -56,6 +56,7 @@ class NodeSet {
   readonly nodes: Node[];
   current = 0;
   switches = 0;
+  private closing = false;
   private failback: ReturnType<typeof setInterval> | null = null;
 
   constructor(urls: string[], readonly cluster: boolean) {
@@ -70,7 +71,7 @@ class NodeSet {
 
   /** The node at `index` failed as a node (gone, or out of the primary component): use the next one from now on. */
   failed(index: number, error: unknown): void {
-    if (this.nodes.length < 2 || index !== this.current) return;
+    if (this.nodes.length < 2 || index !== this.current || this.closing) return;
     const next = (index + 1) % this.nodes.length;
     this.current = next;
     this.switches++;
@@ -134,6 +135,8 @@ class NodeSet {
   }
 
   async end(): Promise<void> {
+    // Statements cut off by the closing pools are not failures of their nodes.
+    this.closing = true;
     this.dropProbe();
     this.stopWatching();
     await Promise.all(this.nodes.map((n) => n.pool?.end().catch(() => undefined)));
