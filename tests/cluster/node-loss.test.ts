@@ -12,7 +12,7 @@ import { HttpClient } from "../support/route-access";
 // (2001), from memory); the CSV rows restate GaAs a at invented temperatures, only to tell rows apart.
 const VICTIMS: NodeNo[] = FULL ? [2, 1, 3] : [2];
 const DOWN_MS = rounds(8_000, 12_000);
-const ANSWER_WITHIN_MS = 15_000; // "not a hang": every answer, even one held through the cluster's pause, comes within this
+const ANSWER_WITHIN_MS = 30_000; // "not a hang": every answer, even one held through the cluster's pause, comes within this
 const CSV_ROWS = 20;
 const HEADER = "material,quantity,temperature_k,valley,composition_x,value,unit,uncertainty,method,source,source_title,locator,notes";
 

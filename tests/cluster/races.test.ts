@@ -86,7 +86,7 @@ describe(`${AT_ONCE} decisions on one proposal at once, through two app processe
       expect(row.version).toBe(version + 1);
       for (const l of losers) {
         expect(l.status).toBe(409);
-        const message = alertText(l.text)!;
+        const message = alertText(l.text) ?? `no message; the page says ${/<h1[^>]*>([^<]*)</.exec(l.text)?.[1]}`;
         expect(message).toMatch(DECIDED);
         expect(message).toContain(`already ${row.state} by`);
       }
@@ -124,8 +124,9 @@ describe(`${AT_ONCE} freezes of one set at once, through two app processes on tw
       console.log(`cluster races: freezes, round ${round}: ${won.length} releases frozen (${won.map((w) => w.location!.split("/").pop()).join(", ")}), ${lost.length} refused ${JSON.stringify(tally(lost))}`);
       expect(won.length).toBeGreaterThanOrEqual(1);
       for (const l of lost) {
-        expect(l.status, alertText(l.text) ?? "").toBe(409);
-        expect(alertText(l.text)).toBe(SET_CONFLICT);
+        const message = alertText(l.text) ?? `no message; the page says ${/<h1[^>]*>([^<]*)</.exec(l.text)?.[1]}`;
+        expect(l.status, message).toBe(409);
+        expect(message).toBe(SET_CONFLICT);
       }
       // A version is frozen at most once: two pages that saw the same set never both freeze.
       expect(new Set(won.map((w) => w.v)).size).toBe(won.length);

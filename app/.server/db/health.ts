@@ -69,10 +69,14 @@ export async function pingDatabase(timeoutMs = 1_500): Promise<DatabaseHealth> {
   }
 }
 
-// Pages ask at most once a second while the database answers, so the check costs nothing under load.
+let pinging: Promise<DatabaseHealth> | null = null;
+
+// Pages ask at most once a second while the database answers, so the check costs nothing under load; pages that
+// ask at the same moment share one ping rather than queueing many behind each other.
 export async function databaseAvailable(): Promise<boolean> {
   if (Date.now() - lastOkAt < 1_000) return true;
-  return (await pingDatabase()).ok;
+  pinging ??= pingDatabase().finally(() => (pinging = null));
+  return (await pinging).ok;
 }
 
 export function markDatabaseSuspect() {
