@@ -21,7 +21,8 @@ import { sessionCookieValue } from "../support/session";
 // node and writes test-artifacts/bench/cluster.json. Rows:
 //  - the nearly-free-electron check (POST /api/v1/checks/nfe): a token read, the computation, no write;
 //  - a proposal submitted through the form with potential coefficients (POST /proposals/new): its NFE check, the
-//    proposal row, its audit row and a notice to each lead of the family, each a commit.
+//    proposal row, its audit row and a notice to each lead of the family, each a commit;
+//  - the same proposal without coefficients: the Varshni and range checks only, so the commits weigh more.
 // The values are the demo's GaAs Γ gap at 300 K, 1.4225 eV of [V01] (Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys.
 // 89, 5815 (2001), from memory) with a model potential; they only give the paths real work.
 
@@ -60,6 +61,11 @@ function cases(app: AppServer, t: Target): { path: string; opts: autocannon.Opti
     locator: "GaAs parameter table", notes: "benchmark proposal", periodAngstrom: "5.65325",
     "potentialCoefficients.0.n": "1", "potentialCoefficients.0.valueEv": "0.71125", "potentialCoefficients.1.n": "2", "potentialCoefficients.1.valueEv": "0.0250",
   }).toString();
+  const plain = new URLSearchParams({
+    intent: "submit", kind: "revision", recordId: String(t.recordId), material: "GaAs", quantity: "eg", value: "1.4225", unit: "eV", method: "compilation",
+    "source.kind": "doi", "source.doi": "10.1063/1.1368156", "source.title": "Band parameters for III–V compound semiconductors and their alloys",
+    locator: "GaAs parameter table", notes: "benchmark proposal",
+  }).toString();
   return [
     {
       path: "NFE check (POST /api/v1/checks/nfe)", expect: "2xx",
@@ -75,6 +81,14 @@ function cases(app: AppServer, t: Target): { path: string; opts: autocannon.Opti
         url: `${app.url}/proposals/new?record=${t.recordId}&kind=revision`, method: "POST",
         headers: { cookie: t.cookie, origin: app.url, "content-type": "application/x-www-form-urlencoded" },
         body: form,
+      },
+    },
+    {
+      path: "proposal, value only (POST /proposals/new)", expect: "3xx",
+      opts: {
+        url: `${app.url}/proposals/new?record=${t.recordId}&kind=revision`, method: "POST",
+        headers: { cookie: t.cookie, origin: app.url, "content-type": "application/x-www-form-urlencoded" },
+        body: plain,
       },
     },
   ];
@@ -150,17 +164,17 @@ await sink.close();
 
 const one = (p: string) => rows.find((r) => r.target === "one node" && r.path === p)!;
 const fmt = (n: number, d = 0) => n.toFixed(d).padStart(9);
-console.log(`\nBandledger write paths, one MariaDB vs the three-node Galera cluster — ${os.cpus().length} cores, ${os.cpus()[0]?.model ?? "unknown CPU"}, Node ${process.version}, ${CONNECTIONS} connections, ${DURATION} s per row`);
-console.log(`${"path".padEnd(40)}${"target".padEnd(30)}${"req/s".padStart(9)}${"p50 ms".padStart(9)}${"p99 ms".padStart(9)}${"÷ one".padStart(9)}${"bad".padStart(6)}`);
+console.log(`\nBandledger write paths, one MariaDB vs the three-node Galera cluster — ${os.cpus().length} cores, ${os.cpus()[0]?.model ?? "unknown CPU"}, Node ${process.version}, ${CONNECTIONS} connections, ${DURATION} s per row, load average ${os.loadavg().map((l) => l.toFixed(1)).join(" ")}`);
+console.log(`${"path".padEnd(45)}${"target".padEnd(30)}${"req/s".padStart(9)}${"p50 ms".padStart(9)}${"p99 ms".padStart(9)}${"÷ one".padStart(9)}${"bad".padStart(6)}`);
 const table = rows.map((r) => {
   const ratio = r.requestsPerSecond / one(r.path).requestsPerSecond;
-  console.log(`${r.path.padEnd(40)}${r.target.padEnd(30)}${fmt(r.requestsPerSecond)}${fmt(r.p50Ms, 1)}${fmt(r.p99Ms, 1)}${fmt(ratio, 2)}${String(r.bad + r.errors).padStart(6)}`);
+  console.log(`${r.path.padEnd(45)}${r.target.padEnd(30)}${fmt(r.requestsPerSecond)}${fmt(r.p50Ms, 1)}${fmt(r.p99Ms, 1)}${fmt(ratio, 2)}${String(r.bad + r.errors).padStart(6)}`);
   return { ...r, ratioToOneNode: ratio };
 });
 mkdirSync("test-artifacts/bench", { recursive: true });
 writeFileSync("test-artifacts/bench/cluster.json", JSON.stringify({
   at: new Date().toISOString(), machine: { cores: os.cpus().length, cpu: os.cpus()[0]?.model, node: process.version, memoryGiB: Math.round(os.totalmem() / 2 ** 30) },
-  connections: CONNECTIONS, durationSeconds: DURATION, rows: table,
+  loadAverage: os.loadavg(), connections: CONNECTIONS, durationSeconds: DURATION, rows: table,
 }, null, 2));
 console.log("\n(÷ one = throughput ÷ the same path on one MariaDB; written to test-artifacts/bench/cluster.json)");
 process.exit(0);
