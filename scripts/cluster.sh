@@ -138,7 +138,7 @@ position() {
     local log; log="$CLUSTER_DIR/node$n.recover.log"
     write_config "$n"
     : >"$log"
-    mariadbd --defaults-file="$(config_file "$n")" --wsrep-recover --log-error="$log" >/dev/null 2>&1 || true
+    mariadbd --defaults-file="$(config_file "$n")" --wsrep-recover --skip-networking --log-error="$log" >/dev/null 2>&1 || true
     local recovered; recovered=$(sed -n 's/.*WSREP: Recovered position: *//p' "$log" | tail -n 1)
     echo "$recovered"
     return
@@ -216,6 +216,7 @@ bootstrap() {
 
 join() {
   local n=$1 pos=""
+  check_ports "$n"
   if has_data "$n"; then pos=$(position "$n"); fi
   say "node $n joining${pos:+ from position $pos}"
   launch "$n" join "$pos"
