@@ -21,12 +21,17 @@ cleanup() {
 }
 trap cleanup INT TERM EXIT
 
-if [ -z "${DATABASE_URL:-}" ]; then
-  if ! bash scripts/db.sh status >/dev/null 2>&1; then started_db=1; fi
-  bash scripts/db.sh start
+if [ -n "${DATABASE_URLS:-}" ]; then
+  # A cluster: its runtime account cannot change the schema; `npm run cluster -- migrate` migrates through one node.
+  say "using the database cluster in DATABASE_URLS (migrations and demo data: npm run cluster -- migrate)"
+else
+  if [ -z "${DATABASE_URL:-}" ]; then
+    if ! bash scripts/db.sh status >/dev/null 2>&1; then started_db=1; fi
+    bash scripts/db.sh start
+  fi
+  npx tsx app/.server/db/migrate-cli.ts
+  npx tsx seed-data/load.ts --if-empty
 fi
-npx tsx app/.server/db/migrate-cli.ts
-npx tsx seed-data/load.ts --if-empty
 say "building the app"
 npx react-router build >/dev/null
 

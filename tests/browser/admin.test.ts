@@ -73,7 +73,7 @@ describe("an admin invites a new reader, who signs in and sees only what a reade
     await page.locator("[data-slot=user]").getByText("Li Wei").waitFor();
 
     const nav = await page.getByRole("navigation", { name: "Primary", exact: true }).getByRole("link").allTextContents();
-    expect(nav).toEqual(["Registry", "Materials", "Sources", "Sets", "NFE check", "API"]);
+    expect(nav).toEqual(["Registry", "Materials", "Sources", "Sets", "NFE check", "Crystal check", "API"]);
     await page.screenshot({ path: artifactPath("reader-home.png"), fullPage: true });
 
     const admin = await page.goto(`${appUrl}/admin/users`);
