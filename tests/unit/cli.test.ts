@@ -70,14 +70,25 @@ describe.concurrent("bandledger, the real command", { timeout: 30_000 }, () => {
     expect(out.gap).toBe(1);
     expect(out.verdict).toBe("none");
     const central = out.centralEquation as Record<string, unknown>;
-    expect(Object.keys(central)).toEqual(["gapEv", "lowerEv", "upperEv", "planeWaves"]);
+    expect(Object.keys(central)).toEqual(["gapEv", "lowerEv", "upperEv", "planeWaves", "converged"]);
     expect(Number.isInteger(central.planeWaves)).toBe(true);
+    expect(central.converged).toBe(true);
     for (const key of ["gapEv", "lowerEv", "upperEv"]) expect(significantDigits(central[key] as string)).toBeGreaterThanOrEqual(10);
     // Table 20.1 prints 8 decimals; the edges are converged to 1e-9 eV, i.e. 1e-9/ε1 in these units.
     expectPrinted(Number(central.lowerEv) / EPSILON_PI_OVER_A, "-5.79008060", 1e-9);
     expectPrinted(Number(central.upperEv) / EPSILON_PI_OVER_A, "1.85818754", 1e-9);
     // First order: 2|U| = 10 ε(π/a), ten times the published 1.176593107 eV.
     expectDecimal((out.firstOrder as Record<string, unknown>).gapEv, "11.76593107", 5e-8);
+  });
+
+  it("nfe: a basis that hits the plane-wave cap says converged: false and exits 4, the numbers still printed", async () => {
+    // U_1 = 1e6 eV at a = 5.65325 Å is q ≈ 8.5e5 in Mathieu's terms: far beyond what 201 plane waves resolve.
+    const run = await bandledger("nfe", "--period", "5.65325", "--coefficient", "1:1000000", "--stated", "1", "--json");
+    expect(run.code).toBe(4);
+    const central = JSON.parse(run.stdout).centralEquation as Record<string, unknown>;
+    expect(central.converged).toBe(false);
+    expect(central.planeWaves).toBe(201);
+    expect(run.stderr).toMatch(/did not converge/);
   });
 
   it("calc varshni: GaAs Γ at 300 K is 1.4224821 eV [Var67] with [V01] (calc)", async () => {
@@ -160,6 +171,22 @@ describe("bandledger, its dispatcher in process", () => {
     expect(run.stdout).toMatch(/central-equation gap\s+0\.1999\d+\s+eV/);
     expect(run.stdout).toMatch(/residual \(stated − central\)\s+0\.0000\d+\s+eV/);
     expect(run.stdout).toMatch(/verdict\s+pass/);
+  });
+
+  it("nfe: a table run that does not converge says so and exits 4", async () => {
+    const run = await inProcess("nfe", "--period", "5.65325", "--coefficient", "1:1000000");
+    expect(run.code).toBe(4);
+    expect(run.stdout).toMatch(/plane waves\s+201\s+\(not converged\)/);
+  });
+
+  it("nfe: a period or a mass too small for double precision is exit 2 naming the option", async () => {
+    const period = await inProcess("nfe", "--period", "0.000001", "--coefficient", "1:0.5", "--json");
+    expect(period.code).toBe(2);
+    expect(period.stdout).toBe("");
+    expect(period.stderr).toMatch(/^bandledger nfe: --period: the period 0\.000001 Å is too small.*at least 0\.0123 Å$/m);
+    const mass = await inProcess("nfe", "--period", "5.65325", "--coefficient", "1:0.5", "--mass", "0.0000001");
+    expect(mass.code).toBe(2);
+    expect(mass.stderr).toMatch(/--mass: the mass 1e-7 m0 is too small/);
   });
 
   it("prints usage with --help, for each command too, and exits 0", async () => {
