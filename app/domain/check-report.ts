@@ -155,9 +155,14 @@ export function worstVerdict(verdicts: Iterable<Verdict>): Verdict {
 const num = (s: string) => Number(s);
 const dec = (x: number) => toDecimalString(x);
 
+// Conditions come from the ledger or from a form being typed: one that is not a number compares as written.
+function keyOf(s: string): string {
+  return parseExactDecimal(s).ok ? normalisedDecimalKey(s) : s.trim();
+}
+
 function sameDecimal(a: string | null, b: string | null): boolean {
   if (a === null || b === null) return a === b;
-  return normalisedDecimalKey(a) === normalisedDecimalKey(b);
+  return keyOf(a) === keyOf(b);
 }
 
 function isNumber(s: string | null | undefined): s is string {
@@ -166,7 +171,7 @@ function isNumber(s: string | null | undefined): s is string {
 
 /** "300 K" for a stated temperature, "0 K" for a fit parameter. */
 function temperatureLabel(t: string | null): string {
-  return t === null ? "0 K" : `${normalisedDecimalKey(t)} K`;
+  return t === null ? "0 K" : `${keyOf(t)} K`;
 }
 
 function valleyLabel(v: Valley | null): string {
@@ -175,7 +180,7 @@ function valleyLabel(v: Valley | null): string {
 
 function conditionsText(v: Pick<CheckValue, "valley" | "temperatureK" | "composition">, temperatureDependent: boolean): string {
   const parts = [
-    v.composition !== null ? `x = ${normalisedDecimalKey(v.composition)}` : null,
+    v.composition !== null ? `x = ${keyOf(v.composition)}` : null,
     v.valley ? valleyLabel(v.valley) : null,
     temperatureDependent ? (v.temperatureK === null ? "0 K fit" : temperatureLabel(v.temperatureK)) : null,
   ].filter(Boolean);
@@ -251,6 +256,39 @@ function baseResult(id: string, kind: CheckKind, title: string, formula: string,
   return { id, kind, title, status: "none", formula, reference, inputs: [], stated: null, computed: [], residual: null, tolerance: null, notes: [], codataEdition: CODATA_EDITION };
 }
 
+// The physics and the exact decimals refuse what lies outside their domain with a RangeError (T + β ≤ 0, x > 1, a
+// value that is not a number). A check reports that as its own failure with the reason, so one odd value in the
+// ledger never takes a record or review page down; any other error is a fault of ours and is thrown.
+function failOnDomainError(r: CheckResult, error: unknown): CheckResult {
+  if (!(error instanceof RangeError)) throw error;
+  r.status = "fail";
+  r.notes.push(`The check could not run on these inputs: ${error.message}.`);
+  return r;
+}
+
+function attempt(r: CheckResult, run: () => void): CheckResult {
+  try {
+    run();
+  } catch (e) {
+    failOnDomainError(r, e);
+  }
+  return r;
+}
+
+const CHECK_TITLES: Record<CheckKind, string> = {
+  range: "Plausible range", nfe: "Nearly-free-electron gap", varshni: "Varshni fit", kane: "Kane mass", bowing: "Bowing",
+};
+
+// The whole of one check, for a refusal that comes before it has a result of its own (while choosing its inputs).
+function guarded(kind: CheckKind, run: () => CheckResult | CheckResult[] | null): CheckResult[] {
+  try {
+    const result = run();
+    return result === null ? [] : Array.isArray(result) ? result : [result];
+  } catch (e) {
+    return [failOnDomainError(baseResult(`${kind}:error`, kind, CHECK_TITLES[kind], "", ""), e)];
+  }
+}
+
 function rangeCheck(ctx: Context): CheckResult | null {
   const { subject } = ctx;
   const q = quantityOf(ctx.inputs, subject.quantityKey);
@@ -260,12 +298,14 @@ function rangeCheck(ctx: Context): CheckResult | null {
   const r = baseResult("range", "range", "Plausible range", bounds, `the plausible range of ${q.name.toLowerCase()} in the catalogue`);
   r.inputs.push(inputOf(ctx, subject));
   r.stated = figure(symbolOf(ctx.inputs, subject), subject.value, q.canonicalUnit);
-  const below = q.rangeMin !== null && compareDecimalStrings(subject.value, q.rangeMin) < 0;
-  const above = q.rangeMax !== null && compareDecimalStrings(subject.value, q.rangeMax) > 0;
-  r.status = below || above ? "fail" : "pass";
-  if (below) r.notes.push(`${subject.value} lies below ${q.rangeMin}${unit ? ` ${unit}` : ""}: check the unit and the sign.`);
-  if (above) r.notes.push(`${subject.value} lies above ${q.rangeMax}${unit ? ` ${unit}` : ""}: check the unit.`);
-  return r;
+  const value = subject.value;
+  return attempt(r, () => {
+    const below = q.rangeMin !== null && compareDecimalStrings(value, q.rangeMin) < 0;
+    const above = q.rangeMax !== null && compareDecimalStrings(value, q.rangeMax) > 0;
+    r.status = below || above ? "fail" : "pass";
+    if (below) r.notes.push(`${value} lies below ${q.rangeMin}${unit ? ` ${unit}` : ""}: check the unit and the sign.`);
+    if (above) r.notes.push(`${value} lies above ${q.rangeMax}${unit ? ` ${unit}` : ""}: check the unit.`);
+  });
 }
 
 function nfeCheck(ctx: Context, notRun: CheckReport["notRun"]): CheckResult | null {
@@ -301,23 +341,27 @@ function nfeCheck(ctx: Context, notRun: CheckReport["notRun"]): CheckResult | nu
   if (lattice) r.inputs.push(inputOf(ctx, lattice));
   else r.inputs.push({ symbol: "a (period)", value: periodAngstrom, unit: "Å", recordId: subject.recordId, revisionId: subject.revisionId, from: "subject", material: null, sourceLabel: subject.sourceLabel });
   r.inputs.push({ symbol: "m (band mass)", value: "1", unit: "m0", recordId: null, revisionId: null, from: "default", material: null, sourceLabel: null });
-  try {
+  return attempt(r, () => {
     const check = checkNfeGap({
       periodAngstrom: num(periodAngstrom),
       coefficients: coefficients.map((c) => ({ n: c.n, energyEv: num(c.valueEv) })),
       gapIndex: 1,
-      statedGapEv: num(subject.value),
+      statedGapEv: num(subject.value!),
       toleranceEv,
     });
+    const central = check.centralEquation;
     r.status = check.verdict;
-    r.stated = figure("stated gap", subject.value, "eV");
-    r.computed.push(figure("first order 2|U_1|", check.firstOrder.gapEv, "eV"), figure(`central equation (${check.centralEquation.planeWaves} plane waves)`, check.centralEquation.gapEv, "eV"));
+    r.stated = figure("stated gap", subject.value!, "eV");
+    r.computed.push(
+      figure("first order 2|U_1|", check.firstOrder.gapEv, "eV"),
+      figure(`central equation (${central.planeWaves} plane waves${central.converged ? "" : ", not converged"})`, central.gapEv, "eV"),
+    );
     r.residual = check.residualEv === null ? null : figure("stated − central equation", check.residualEv, "eV");
     r.tolerance = figure("absolute", toleranceEv, "eV");
     r.notes.push(...check.notes);
     if (periodFrom === "lattice constant") r.notes.push(`No period was stated with the coefficients: the lattice constant a of ${ctx.inputs.material.key} was used.`);
     r.nfe = {
-      periodAngstrom,
+      periodAngstrom: periodAngstrom!,
       periodFrom,
       massM0: "1",
       gapIndex: check.gapIndex,
@@ -325,19 +369,14 @@ function nfeCheck(ctx: Context, notRun: CheckReport["notRun"]): CheckResult | nu
       coefficients: coefficients.map((c) => ({ n: c.n, valueEv: c.valueEv })),
       firstOrder: { gapEv: dec(check.firstOrder.gapEv), lowerEv: dec(check.firstOrder.lowerEv), upperEv: dec(check.firstOrder.upperEv) },
       centralEquation: {
-        gapEv: dec(check.centralEquation.gapEv),
-        lowerEv: dec(check.centralEquation.lowerEv),
-        upperEv: dec(check.centralEquation.upperEv),
-        planeWaves: check.centralEquation.planeWaves,
-        converged: check.centralEquation.converged,
+        gapEv: dec(central.gapEv),
+        lowerEv: dec(central.lowerEv),
+        upperEv: dec(central.upperEv),
+        planeWaves: central.planeWaves,
+        converged: central.converged,
       },
     };
-  } catch (e) {
-    if (!(e instanceof RangeError)) throw e;
-    r.status = "fail";
-    r.notes.push(`The check could not run on these inputs: ${e.message}.`);
-  }
-  return r;
+  });
 }
 
 interface VarshniFit {
@@ -408,23 +447,24 @@ function varshniChecks(ctx: Context, notRun: CheckReport["notRun"]): CheckResult
     .slice()
     .sort((a, b) => num(a.temperatureK!) - num(b.temperatureK!))
     .map((gap) => {
-      const t = normalisedDecimalKey(gap.temperatureK!);
+      const t = keyOf(gap.temperatureK!);
       const r = baseResult(`varshni:${subject.valley}:${t}`, "varshni", `Varshni fit at ${t} K`, "Eg(T) = Eg(0) − αT²/(T + β)", "Varshni (1967)");
       r.inputs.push(inputOf(ctx, fit.eg0), inputOf(ctx, fit.alpha), inputOf(ctx, fit.beta), inputOf(ctx, gap));
-      const result = varshniGap(fit.parameters, num(gap.temperatureK!));
-      const residual = num(gap.value!) - result.valueEv;
       r.stated = figure(`stated ${symbolOf(ctx.inputs, gap)}`, gap.value!, "eV");
-      r.computed.push(figure(`0 K fit at ${t} K`, result.valueEv, "eV"));
-      r.residual = figure("stated − fit", residual, "eV");
       r.tolerance = figure("absolute", toleranceEv, "eV");
-      // Strict (no warn band): a stated gap and the fit are two statements of one number; see docs/decisions/002.
-      r.status = Math.abs(residual) <= toleranceEv ? "pass" : "fail";
       if (fit.range) r.notes.push(`Fit range ${fit.range.minK}–${fit.range.maxK} K.`);
-      if (result.warning) {
-        r.notes.push(`${result.warning}: the fit does not vouch for this temperature.`);
-        if (r.status === "pass") r.status = "warn";
-      }
-      return r;
+      return attempt(r, () => {
+        const result = varshniGap(fit.parameters, num(gap.temperatureK!));
+        const residual = num(gap.value!) - result.valueEv;
+        r.computed.push(figure(`0 K fit at ${t} K`, result.valueEv, "eV"));
+        r.residual = figure("stated − fit", residual, "eV");
+        // Strict (no warn band): a stated gap and the fit are two statements of one number; see docs/decisions/002.
+        r.status = Math.abs(residual) <= toleranceEv ? "pass" : "fail";
+        if (result.warning) {
+          r.notes.push(`${result.warning}: the fit does not vouch for this temperature.`);
+          if (r.status === "pass") r.status = "warn";
+        }
+      });
     });
 }
 
@@ -461,7 +501,7 @@ function kaneCheck(ctx: Context, notRun: CheckReport["notRun"]): CheckResult | n
   const relativeTolerance = toleranceOf(ctx.inputs, "me");
   const r = baseResult("kane", "kane", "Kane mass", "m0/m* = 1 + 2F + Ep(Eg + 2Δso/3)/(Eg(Eg + Δso))", "Kane (1957)");
   r.inputs.push(inputOf(ctx, ep!), inputOf(ctx, f!), inputOf(ctx, gap!), inputOf(ctx, delta!), inputOf(ctx, mass!));
-  try {
+  return attempt(r, () => {
     const check = checkKaneMass({ epEv: num(ep!.value!), f: num(f!.value!), egEv: num(gap!.value!), deltaSoEv: num(delta!.value!), statedMassM0: num(mass!.value!), relativeTolerance });
     r.status = check.verdict;
     r.stated = figure(`stated ${symbolOf(ctx.inputs, mass!)}`, mass!.value!, "m0");
@@ -473,12 +513,7 @@ function kaneCheck(ctx: Context, notRun: CheckReport["notRun"]): CheckResult | n
       r.notes.push("These parameters give a non-positive m0/m*: no mass follows from them.");
     }
     r.tolerance = figure("relative", relativeTolerance, "");
-  } catch (e) {
-    if (!(e instanceof RangeError)) throw e;
-    r.status = "fail";
-    r.notes.push(`The check could not run on these inputs: ${e.message}.`);
-  }
-  return r;
+  });
 }
 
 function bowingChecks(ctx: Context, notRun: CheckReport["notRun"]): CheckResult[] {
@@ -512,7 +547,7 @@ function bowingChecks(ctx: Context, notRun: CheckReport["notRun"]): CheckResult[
   }
   const toleranceEv = toleranceOf(inputs, "eg");
   return gaps.map((gap) => {
-    const x = normalisedDecimalKey(gap.composition!);
+    const x = keyOf(gap.composition!);
     const temperatureK = gap.temperatureK === null ? 0 : num(gap.temperatureK);
     const r = baseResult(
       `bowing:${valley}:${x}:${temperatureK}`,
@@ -527,17 +562,18 @@ function bowingChecks(ctx: Context, notRun: CheckReport["notRun"]): CheckResult[
     }
     r.inputs.push(inputOf(ctx, c0!));
     if (c1) r.inputs.push(inputOf(ctx, c1));
-    const result = bowedGapAtTemperature({ a: fitA!.parameters, b: fitB!.parameters, c0Ev: num(c0!.value!), c1Ev: c1 ? num(c1.value!) : 0 }, num(x), temperatureK);
-    const residual = num(gap.value!) - result.valueEv;
     r.stated = figure(`stated ${symbolOf(inputs, gap)}`, gap.value!, "eV");
-    r.computed.push(figure(`bowing at x = ${x}`, result.valueEv, "eV"));
-    r.residual = figure("stated − bowing", residual, "eV");
     r.tolerance = figure("absolute", toleranceEv, "eV");
-    r.status = verdictFromResidual(residual, toleranceEv);
     if (!c1) r.notes.push("No C1 in the ledger: C = C0.");
-    for (const w of result.warnings) r.notes.push(`${w.replace("end point A", ends!.a.material.key).replace("end point B", ends!.b.material.key)}.`);
-    if (result.warnings.length && r.status === "pass") r.status = "warn";
-    return r;
+    return attempt(r, () => {
+      const result = bowedGapAtTemperature({ a: fitA!.parameters, b: fitB!.parameters, c0Ev: num(c0!.value!), c1Ev: c1 ? num(c1.value!) : 0 }, num(x), temperatureK);
+      const residual = num(gap.value!) - result.valueEv;
+      r.computed.push(figure(`bowing at x = ${x}`, result.valueEv, "eV"));
+      r.residual = figure("stated − bowing", residual, "eV");
+      r.status = verdictFromResidual(residual, toleranceEv);
+      for (const w of result.warnings) r.notes.push(`${w.replace("end point A", ends!.a.material.key).replace("end point B", ends!.b.material.key)}.`);
+      if (result.warnings.length && r.status === "pass") r.status = "warn";
+    });
   });
 }
 
@@ -562,14 +598,13 @@ export function buildCheckReport(inputs: CheckReportInputs): CheckReport {
   const notRun: CheckReport["notRun"] = [];
   const results: CheckResult[] = [];
   if (subject.value !== null) {
-    const range = rangeCheck(ctx);
-    if (range) results.push(range);
-    const nfe = nfeCheck(ctx, notRun);
-    if (nfe) results.push(nfe);
-    results.push(...varshniChecks(ctx, notRun));
-    const kane = kaneCheck(ctx, notRun);
-    if (kane) results.push(kane);
-    results.push(...bowingChecks(ctx, notRun));
+    results.push(
+      ...guarded("range", () => rangeCheck(ctx)),
+      ...guarded("nfe", () => nfeCheck(ctx, notRun)),
+      ...guarded("varshni", () => varshniChecks(ctx, notRun)),
+      ...guarded("kane", () => kaneCheck(ctx, notRun)),
+      ...guarded("bowing", () => bowingChecks(ctx, notRun)),
+    );
   }
   return {
     origin: inputs.origin,
