@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { parseDoi, parseReportNumber } from "./citations";
 import { decimalColumnValue, parseExactDecimal, scaleExact } from "./exact-decimal";
+import { smallestResolvablePeriodAngstrom } from "./physics/nfe";
 import { checkRange, quantityByKey, type QuantityDefinition } from "./quantities";
 import { convertToCanonical, findAcceptedUnit } from "./units";
 
@@ -55,6 +56,9 @@ export function registryViewSearch(view: RegistryView, changes: Partial<Registry
   const s = params.toString();
   return s ? `?${s}` : "";
 }
+
+/** The nearly-free-electron check (band mass m0, gap 1) cannot resolve a gap on a shorter period, rounded up to 3 digits. */
+const SMALLEST_PERIOD_ANGSTROM = Number(smallestResolvablePeriodAngstrom(1, 1).toPrecision(3));
 
 export const positiveId = z.coerce.number().int().positive().max(2_147_483_647);
 
@@ -168,6 +172,9 @@ export function prepareRevision(q: QuantityDefinition, raw: unknown): { ok: true
     if (!input.potentialCoefficients?.length) errors.periodAngstrom = "A period is stated only with potential coefficients.";
     else if (!p.ok) errors.periodAngstrom = p.message;
     else if (p.value.decimal.lte(0) || p.value.decimal.gt(100)) errors.periodAngstrom = "The period must lie between 0 and 100 Å.";
+    else if (p.value.decimal.lt(SMALLEST_PERIOD_ANGSTROM)) {
+      errors.periodAngstrom = `A period below ${SMALLEST_PERIOD_ANGSTROM} Å puts the gap at energies too large for double precision to resolve (is it in Å?).`;
+    }
     else periodAngstrom = p.value.canonical;
   }
   let validFromK: string | null = null;

@@ -264,6 +264,12 @@ export function nfeEnergyScaleEv(potential: Pick<PeriodicPotential, "periodAngst
 
 const short = (x: number) => String(Number(x.toPrecision(3)));
 
+/** The smallest period (Å) whose energy scale double precision resolves gap n at, for a band mass m (m0). */
+export function smallestResolvablePeriodAngstrom(massM0 = 1, gapIndex = 1): number {
+  const stretch = Math.max(1, (requirePositiveInteger(gapIndex, "gap index") ** 2) / 4);
+  return 2 * Math.PI * Math.sqrt(((HBAR2_OVER_2ME_EV_A2 / requirePositive(massM0, "mass")) * stretch * RELATIVE_CONVERGENCE) / MAX_RESOLUTION_EV);
+}
+
 // Double precision carries about 16 digits: energies of the order of the scale are resolved only to a fixed fraction
 // of it. Where that fraction exceeds MAX_RESOLUTION_EV the gap would be a number without meaning (a period of
 // 1e-30 Å gives a gap of 0), so the input is refused at the period, or at the mass where the period is ordinary.
@@ -281,7 +287,7 @@ function growthOf(model: Model, potential: PeriodicPotential, gapIndex: number, 
       `gap ${gapIndex} lies at an energy scale of ${short(scale)} eV, where double precision resolves it only to ` +
       `${short(resolution)} eV (the limit is ${MAX_RESOLUTION_EV * 1e6} µeV)`;
     if (atFreeMass) {
-      const smallest = 2 * Math.PI * Math.sqrt(((HBAR2_OVER_2ME_EV_A2 / massM0) * stretch) / largestScale);
+      const smallest = smallestResolvablePeriodAngstrom(massM0, gapIndex);
       throw new PhysicsInputError(
         "period",
         `the period ${short(periodAngstrom)} Å is too small: ${why}; at m = ${short(massM0)} m0 the period must be at least ${short(smallest)} Å`,
