@@ -82,8 +82,9 @@ describe.concurrent("bandledger, the real command", { timeout: 30_000 }, () => {
   });
 
   it("nfe: a basis that hits the plane-wave cap says converged: false and exits 4, the numbers still printed", async () => {
-    // U_1 = 1e6 eV at a = 5.65325 Å is q ≈ 8.5e5 in Mathieu's terms: far beyond what 201 plane waves resolve.
-    const run = await bandledger("nfe", "--period", "5.65325", "--coefficient", "1:1000000", "--stated", "1", "--json");
+    // U_1 = 1e6 eV at a = 5.65325 Å is q ≈ 8.5e5 in Mathieu's terms: far beyond what 201 plane waves resolve
+    // (U_10 makes the basis grow ten plane waves a side per step, so the cap comes in nine steps).
+    const run = await bandledger("nfe", "--period", "5.65325", "--coefficient", "1:1000000", "--coefficient", "10:1", "--stated", "1", "--json");
     expect(run.code).toBe(4);
     const central = JSON.parse(run.stdout).centralEquation as Record<string, unknown>;
     expect(central.converged).toBe(false);
@@ -174,7 +175,7 @@ describe("bandledger, its dispatcher in process", () => {
   });
 
   it("nfe: a table run that does not converge says so and exits 4", async () => {
-    const run = await inProcess("nfe", "--period", "5.65325", "--coefficient", "1:1000000");
+    const run = await inProcess("nfe", "--period", "5.65325", "--coefficient", "1:1000000", "--coefficient", "10:1");
     expect(run.code).toBe(4);
     expect(run.stdout).toMatch(/plane waves\s+201\s+\(not converged\)/);
   });

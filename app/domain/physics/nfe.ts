@@ -33,7 +33,10 @@ export interface ConvergenceOptions {
    * energy scale makes RELATIVE_CONVERGENCE of it larger, that is the threshold instead.
    */
   convergenceEv?: number;
-  /** Largest basis tried before giving up as not converged; default 201. */
+  /**
+   * Largest basis tried before giving up as not converged; default 201, or as many as the first basis and two steps
+   * of the highest coefficient order need where that is more (orders above about 30).
+   */
   maxPlaneWaves?: number;
 }
 
@@ -232,9 +235,10 @@ interface Growth {
 // changes nothing and would stop the loop early. A step of the highest order M adds M successive orders a side,
 // each coupled to the basis already there.
 function converge(evaluate: (halfWidth: number) => number[], growth: Growth, options: ConvergenceOptions): Converged {
-  const maxPlaneWaves = requirePositiveInteger(options.maxPlaneWaves ?? DEFAULT_MAX_PLANE_WAVES, "plane-wave cap");
-  const maxHalfWidth = Math.floor((maxPlaneWaves - 1) / 2);
   const { needed, step, thresholdEv } = growth;
+  const roomForTwoSteps = 2 * (growth.start + QUIET_STEPS * step) + 1;
+  const maxPlaneWaves = requirePositiveInteger(options.maxPlaneWaves ?? Math.max(DEFAULT_MAX_PLANE_WAVES, roomForTwoSteps), "plane-wave cap");
+  const maxHalfWidth = Math.floor((maxPlaneWaves - 1) / 2);
   if (maxHalfWidth < needed) {
     throw new RangeError(`plane-wave cap ${maxPlaneWaves} is below the ${2 * needed + 1} plane waves needed`);
   }
