@@ -2,6 +2,7 @@ import { z } from "zod";
 import { parseDoi, parseReportNumber } from "./citations";
 import { decimalColumnValue, parseExactDecimal, scaleExact } from "./exact-decimal";
 import { smallestResolvablePeriodAngstrom } from "./physics/nfe";
+import type { RevisionDetails } from "./revision-view";
 import { checkRange, quantityByKey, type QuantityDefinition } from "./quantities";
 import { convertToCanonical, findAcceptedUnit } from "./units";
 
@@ -89,21 +90,15 @@ export const revisionInputSchema = z.object({
 });
 export type RevisionInput = z.input<typeof revisionInputSchema>;
 
-export type PreparedRevision = {
+/** A revision as it will be stored: the value converted exactly, and the details every view of a revision shows. */
+export type PreparedRevision = RevisionDetails & {
   value: string;
   valueNumeric: string;
   significantDigits: number;
   inputValue: string;
   inputUnit: string;
-  uncertainty: string | null;
   method: Method;
   sourceId: number;
-  locator: string | null;
-  notes: string | null;
-  potentialCoefficients: { n: number; valueEv: string }[] | null;
-  periodAngstrom: string | null;
-  validFromK: string | null;
-  validToK: string | null;
 };
 
 export type RevisionFieldErrors = Partial<Record<keyof RevisionInput | `potentialCoefficients.${number}`, string>>;
