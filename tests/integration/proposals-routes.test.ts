@@ -70,6 +70,9 @@ describe("the proposal form without JavaScript", () => {
     const [draft] = await t.db.select().from(proposals).where(and(eq(proposals.authorId, ids.tomas), eq(proposals.recordId, gasbLattice)));
     expect(draft).toMatchObject({ state: "draft", payload: expect.objectContaining({ value: "0.60959", unit: "nm" }) });
     expect(html).toContain(`name="proposalId" value="${draft.id}"`);
+    // The status line says the draft is stored, at the time the database holds.
+    expect(html).not.toContain("Nothing saved yet");
+    expect(html).toContain(`Not submitted: what you typed is saved as a draft (${draft.updatedAt.toISOString().slice(11, 19)} UTC).`);
   });
 
   it("keeps a form posted after the session ended and restores it into a draft after sign-in", async () => {

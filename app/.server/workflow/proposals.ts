@@ -108,6 +108,16 @@ export async function saveDraft(actor: Actor, id: number, raw: unknown): Promise
   return { savedAt, payload };
 }
 
+/** When the author's draft was last saved, or null when it is not (or no longer) their draft. */
+export async function draftSavedAt(actor: Actor, id: number): Promise<Date | null> {
+  const [row] = await db()
+    .select({ updatedAt: proposals.updatedAt })
+    .from(proposals)
+    .where(and(eq(proposals.id, id), eq(proposals.authorId, actor.id), eq(proposals.state, "draft")))
+    .limit(1);
+  return row?.updatedAt ?? null;
+}
+
 /** The leads a submitted proposal goes to: every lead of its family but its author; admins when no one else leads it. */
 export async function reviewersOf(ex: Executor, familyId: number, authorId: number): Promise<number[]> {
   const leads = await ex

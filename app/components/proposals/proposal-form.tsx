@@ -126,6 +126,10 @@ export function ProposalForm(props: {
     submit(form, { method: "post", action });
   }, [queuedIntent, fetcher.state]);
 
+  // A refused submission saved the draft before it was refused; an autosave after it is newer news.
+  const refused = props.actionData?.intent === "submit" ? props.actionData.savedAt : null;
+  const refusedSave = refused && !(fetcher.data?.savedAt && fetcher.data.savedAt > refused) ? refused : null;
+
   const check = useMemo(() => validateProposal(payload, catalogue), [payload, catalogue]);
   const clientErrors: ProposalFieldErrors = check.ok ? {} : check.errors;
   const errorOf = (path: string) => serverErrors[path] ?? (touched.has(path) ? clientErrors[path] : undefined);
@@ -357,6 +361,8 @@ export function ProposalForm(props: {
             </span>
           ) : saving ? (
             "Saving the draft…"
+          ) : refusedSave ? (
+            `Not submitted: what you typed is saved as a draft (${refusedSave.slice(11, 19)} UTC). Correct the marked fields and submit again.`
           ) : fetcher.data?.savedAt ? (
             `Draft saved at ${fetcher.data.savedAt.slice(11, 19)} UTC.`
           ) : props.savedAt ? (
