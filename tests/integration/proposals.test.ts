@@ -158,9 +158,21 @@ describe("deciding", () => {
     expect((await versionOf(id)).state).toBe("submitted");
     const page = await loadProposalPage(who.ravi, id);
     expect(page.can.decide).toBe(false);
-    expect(page.can.decideBlocked).toMatch(/another lead of the family decides it/);
+    expect(page.can.decideBlocked).toBe("You wrote this proposal: another lead of Arsenides or an admin decides it (four-eyes rule).");
+    expect(e.message).toBe(page.can.decideBlocked);
     const done = await decideProposal(who.hanna, id, { decision: "approve", version });
     expect(done.state).toBe("approved");
+  });
+
+  it("words who decides for the author's role: a contributor is told a lead decides, not 'another lead'", async () => {
+    const byContributor = await submitted(who.tomas, gapRevision(recordIds.gaasGap77, "1.5076", { locator: "GaAs parameter table", notes: "Four digits." }));
+    const contributorPage = await loadProposalPage(who.tomas, byContributor);
+    expect(contributorPage.can.decideBlocked).toBe("You wrote this proposal: a lead of Arsenides or an admin decides it, and the decision comes to you by e-mail.");
+    expect(contributorPage.can.decideBlocked).not.toMatch(/another lead/);
+    const byAdmin = await submitted(who.ines, gapRevision(recordIds.gaasGap77, "1.50760", { locator: "GaAs parameter table", notes: "Five digits." }));
+    expect((await loadProposalPage(who.ines, byAdmin)).can.decideBlocked).toBe("You wrote this proposal: a lead of Arsenides or another admin decides it (four-eyes rule).");
+    const e = await refusal(decideProposal(who.ines, byAdmin, { decision: "approve", version: (await versionOf(byAdmin)).version }));
+    expect(e.message).toMatch(/another admin/);
   });
 
   it("refuses a lead of another family and a contributor, and lets an admin decide", async () => {

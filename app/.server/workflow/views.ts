@@ -9,6 +9,7 @@ import { hasRole, type CurrentUser } from "../permissions";
 import { parseBibtexEntry } from "../registry/bibtex";
 import { loadRecord } from "../registry/record-page";
 import { loadProposalCatalogue } from "./catalogue";
+import { ownProposalMessage } from "./decide";
 import { WorkflowError } from "./errors";
 import { loadFacts, loadOneFact, summaryOf, withUnit, type ProposalFacts } from "./facts";
 import { checkReportForProposal } from "../checks/report";
@@ -88,7 +89,7 @@ export async function loadProposalPage(actor: Actor, id: number) {
   const familyLead = actor.role === "admin" || (actor.role === "lead" && f.material !== null && actor.leadFamilyIds.includes(f.material.familyId));
   let decideBlocked: string | null = null;
   if (f.row.state !== "submitted") decideBlocked = f.row.state === "draft" ? "This is a draft; it is decided once its author submits it." : null;
-  else if (author) decideBlocked = "You wrote this proposal: another lead of the family decides it (four-eyes rule).";
+  else if (author) decideBlocked = ownProposalMessage(actor, f.material ? { id: f.material.familyId, name: f.material.familyName } : null);
   else if (!familyLead) decideBlocked = `Only a lead of ${f.material?.familyName ?? "its family"} or an admin decides this proposal.`;
   const summary = summaryOf(f);
   // A stale new-record proposal is compared with the record that now exists.
