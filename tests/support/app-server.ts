@@ -1,5 +1,6 @@
 import { spawn, type ChildProcess } from "node:child_process";
-import { existsSync, mkdirSync, openSync } from "node:fs";
+import { existsSync, mkdirSync, mkdtempSync, openSync } from "node:fs";
+import os from "node:os";
 import path from "node:path";
 import { freePort } from "./ports";
 import { TEST_SESSION_SECRET } from "./session";
@@ -32,6 +33,9 @@ export async function startAppServer(options: {
       SESSION_SECRET: TEST_SESSION_SECRET,
       BANDLEDGER_MAILBOX_DIR: options.mailboxDir,
       VITEST: "",
+      // A data folder of its own unless the test gives one: the app sweeps files its database does not name, and
+      // the project's .data/files belong to the developer's database.
+      BANDLEDGER_DATA_DIR: mkdtempSync(path.join(os.tmpdir(), "bl-app-data-")),
       ...options.extraEnv,
     },
     stdio: ["ignore", log, log],

@@ -1,7 +1,7 @@
 import type { z } from "zod";
 import type { epmCheckResultSchema } from "~/domain/api-schemas";
 import { toDecimalString } from "~/domain/decimal";
-import { memoizedPseudopotentialCheck } from "~/domain/checks/pseudopotential";
+import { memoizedPseudopotentialCheck } from "~/domain/check-report/epm";
 import { CODATA_EDITION, FORM_FACTOR_KEYS, GAP_POINTS, type PseudopotentialCheck } from "~/domain/physics";
 
 export type EpmCheckResult = z.infer<typeof epmCheckResultSchema>;

@@ -1,6 +1,6 @@
 import type { ReactNode } from "react";
 import type { CheckInput, CheckReport, CheckResult, NfeDetail } from "~/domain/check-report";
-import type { EpmDetail } from "~/domain/checks/pseudopotential";
+import type { EpmDetail } from "~/domain/check-report/epm";
 import { exact, readable, recordHref, smallFigure, withUnit } from "./format";
 import { NfePlot } from "./nfe-plot";
 import { VerdictBadge } from "./verdict-badge";

@@ -6,3 +6,4 @@ export * from "./alloys";
 export * from "./kane";
 export { hermitianEigenvalues, symmetricEigenvalues } from "./symmetric-eigenvalues";
 export * from "./epm";
+export { PhysicsInputError } from "./validate";

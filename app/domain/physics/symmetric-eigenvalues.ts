@@ -1,7 +1,8 @@
 // Eigenvalues only of a real symmetric matrix: Householder reduction to tridiagonal form, then the implicit
 // QL algorithm (the tred2/tqli pair of Press et al., Numerical Recipes, 3rd ed., §11.3–11.4, without the
 // eigenvector work). It replaces ml-matrix's EigenvalueDecomposition on the hot path of the NFE check, which
-// always accumulates eigenvectors and was 5–10× slower here (docs/decisions/001-nfe-check-verdict.md).
+// always accumulates eigenvectors and was 3–4× slower on the check's matrices, about 6× at 201 plane waves
+// (docs/decisions/006-own-eigenvalue-solver.md).
 // Complex Hermitian matrices (the pseudopotential check of zinc blende) take a complex Householder reduction
 // to a real tridiagonal matrix (the htridi scheme of EISPACK; Golub & Van Loan, Matrix Computations, §8.3)
 // and then the same QL step.

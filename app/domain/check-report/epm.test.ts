@@ -1,8 +1,8 @@
 import { describe, expect, it, vi } from "vitest";
-import { buildCheckReport, type CheckQuantity, type CheckReportInputs, type CheckValue } from "../check-report";
+import { buildCheckReport, type CheckQuantity, type CheckReportInputs, type CheckValue } from ".";
 import { checkPseudopotential, formFactorsFromRydberg } from "../physics";
 import { QUANTITIES } from "../quantities";
-import { FORM_FACTOR_QUANTITIES, LOW_TEMPERATURE_K, lowTemperatureGap, memoizedPseudopotentialCheck } from "./pseudopotential";
+import { FORM_FACTOR_QUANTITIES, LOW_TEMPERATURE_K, lowTemperatureGap, memoizedPseudopotentialCheck } from "./epm";
 
 // [CB66] Cohen & Bergstresser, Phys. Rev. 141, 789 (1966): GaAs and Si form factors (Ry), from memory.
 // [V01] Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001): GaAs Eg(0) at Γ, X, L and a(300 K), from memory.

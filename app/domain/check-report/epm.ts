@@ -1,4 +1,4 @@
-import type { CheckFigure, CheckInput, CheckMaterial, CheckReport, CheckResult, CheckValue } from "../check-report";
+import type { CheckFigure, CheckInput, CheckMaterial, CheckReport, CheckResult, CheckValue } from "./types";
 import { toDecimalString } from "../decimal";
 import { normalisedDecimalKey, parseExactDecimal } from "../exact-decimal";
 import {
@@ -16,24 +16,16 @@ import {
   checkPseudopotential,
 } from "../physics";
 import type { Valley } from "../quantities";
+import { FORM_FACTOR_QUANTITIES, inputOf, toleranceOf, type ConsistencyCheck } from "./shared";
+import { EPM_TOLERANCE_QUANTITY } from "./tolerances";
 
 // The pseudopotential check of the registry: a diamond or zinc-blende material's stated form factors and lattice
 // constant give its gaps at Γ, X and L (the empirical pseudopotential method of Cohen & Bergstresser, Phys. Rev.
 // 141, 789 (1966)), compared with its stated 0 K or low-temperature gaps.
 
-/** The registry quantity of each form factor. */
-export const FORM_FACTOR_QUANTITIES: Record<FormFactorKey, string> = {
-  S3: "ff_vs3",
-  S8: "ff_vs8",
-  S11: "ff_vs11",
-  A3: "ff_va3",
-  A4: "ff_va4",
-  A11: "ff_va11",
-};
+export { EPM_TOLERANCE_QUANTITY, FORM_FACTOR_QUANTITIES };
 const FORM_FACTOR_OF_QUANTITY = new Map(FORM_FACTOR_KEYS.map((k) => [FORM_FACTOR_QUANTITIES[k], k]));
 
-/** The quantity whose check tolerance the pseudopotential check uses (the admin sets it there). */
-export const EPM_TOLERANCE_QUANTITY = "ff_vs3";
 /** A stated gap at or below this temperature (or a 0 K fit) is compared; warmer ones are not. */
 export const LOW_TEMPERATURE_K = 80;
 
@@ -253,3 +245,14 @@ export function pseudopotentialChecks(ctx: PseudopotentialContext): CheckResult[
 function symbolOf(key: FormFactorKey): string {
   return `${key.startsWith("S") ? "V_S" : "V_A"}(${key.slice(1)})`;
 }
+
+/** The pseudopotential check behind the report (CHECKS). */
+export const epmCheck: ConsistencyCheck = {
+  kind: "epm",
+  title: "Pseudopotential gaps",
+  run: (ctx, notRun) =>
+    pseudopotentialChecks({
+      material: ctx.inputs.material, subject: ctx.subject, values: ctx.values, notRun,
+      toleranceEv: toleranceOf(ctx.inputs, EPM_TOLERANCE_QUANTITY), inputOf: (v) => inputOf(ctx, v),
+    }),
+};
