@@ -7,9 +7,9 @@ import cluster from "node:cluster";
 import path from "node:path";
 import { pathToFileURL } from "node:url";
 import { createRequestHandler } from "@react-router/express";
-import compression from "compression";
 import express from "express";
 import morgan from "morgan";
+import { compressAnswers } from "./compress.js";
 
 // Requests under way get this long after SIGTERM before their connections are closed; the pool is closed after.
 const DRAIN_MS = 3_000;
@@ -18,19 +18,6 @@ const who = `worker ${cluster.worker?.id ?? 0}`;
 /** @param {string} message */
 function say(message) {
   process.stderr.write(`${new Date().toISOString()} bandledger ${who}: ${message}\n`);
-}
-
-/**
- * What is compressed on the fly: textual answers (HTML, JSON, CSS, JS) of at least 1 kB, as react-router-serve did.
- * Never an attachment: uploaded files go out as they were stored, and frozen releases carry their own gzip and
- * brotli forms, computed once (app/.server/sets/release-cache.ts).
- * @param {import("node:http").IncomingMessage} req
- * @param {import("node:http").ServerResponse} res
- */
-export function compressOnTheFly(req, res) {
-  const disposition = res.getHeader("Content-Disposition");
-  if (typeof disposition === "string" && /^\s*attachment\b/i.test(disposition)) return false;
-  return compression.filter(/** @type {any} */ (req), /** @type {any} */ (res));
 }
 
 async function main() {
@@ -42,7 +29,7 @@ async function main() {
 
   const app = express();
   app.disable("x-powered-by");
-  app.use(compression({ filter: compressOnTheFly }));
+  app.use(compressAnswers());
   // The static layout of react-router-serve: fingerprinted assets for a year, the rest of the client build and
   // public/ for an hour; static files stay out of the request log.
   app.use(path.posix.join(build.publicPath, "assets"), express.static(path.join(build.assetsBuildDirectory, "assets"), { immutable: true, maxAge: "1y" }));
