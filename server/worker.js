@@ -31,10 +31,16 @@ async function main() {
   app.disable("x-powered-by");
   app.use(compressAnswers());
   // The static layout of react-router-serve: fingerprinted assets for a year, the rest of the client build and
-  // public/ for an hour; static files stay out of the request log.
+  // public/ for an hour; static files stay out of the request log. Only a path with a file extension is looked up
+  // in the two directories: pages and API paths have none, and each look-up is a stat call (2 % of a registry
+  // page's CPU in a profile).
+  const clientFiles = express.static(build.assetsBuildDirectory);
+  const publicFiles = express.static("public", { maxAge: "1h" });
+  /** @type {(serve: import("express").RequestHandler) => import("express").RequestHandler} */
+  const filesOnly = (serve) => (req, res, next) => (path.posix.extname(req.path) ? serve(req, res, next) : next());
   app.use(path.posix.join(build.publicPath, "assets"), express.static(path.join(build.assetsBuildDirectory, "assets"), { immutable: true, maxAge: "1y" }));
-  app.use(build.publicPath, express.static(build.assetsBuildDirectory));
-  app.use(express.static("public", { maxAge: "1h" }));
+  app.use(build.publicPath, filesOnly(clientFiles));
+  app.use(filesOnly(publicFiles));
   morgan.token("worker", () => String(cluster.worker?.id ?? 0));
   app.use(morgan("w:worker :method :url :status :res[content-length] - :response-time ms"));
   app.all("*", createRequestHandler({ build, mode: process.env.NODE_ENV }));

@@ -37,6 +37,8 @@ export async function startAppServer(options: {
   workers?: number;
   /** A process group of its own, so that a test can send a signal to every process at once, as Ctrl-C does. */
   ownProcessGroup?: boolean;
+  /** Node.js flags for the primary, passed on to each worker (e.g. --cpu-prof). */
+  nodeArgs?: string[];
   extraEnv?: Record<string, string>;
 }): Promise<AppServer> {
   if (!existsSync("build/server/index.js")) throw new Error("no production build: run `npx react-router build` first (npm test does)");
@@ -47,7 +49,7 @@ export async function startAppServer(options: {
   const logFile = path.join("test-artifacts", `app-${port}.log`);
   const log = openSync(logFile, "a");
   const logStart = existsSync(logFile) ? readFileSync(logFile).length : 0;
-  const child = spawn(process.execPath, ["--import", "tsx", "server/main.ts"], {
+  const child = spawn(process.execPath, [...(options.nodeArgs ?? []), "--import", "tsx", "server/main.ts"], {
     env: {
       ...process.env,
       NODE_ENV: "production",
