@@ -9,6 +9,7 @@ import { pathToFileURL } from "node:url";
 import { createRequestHandler } from "@react-router/express";
 import express from "express";
 import morgan from "morgan";
+import { coalesceWrites } from "./coalesce.js";
 import { compressAnswers } from "./compress.js";
 
 // Requests under way get this long after SIGTERM before their connections are closed; the pool is closed after.
@@ -43,6 +44,7 @@ async function main() {
   app.use(filesOnly(publicFiles));
   morgan.token("worker", () => String(cluster.worker?.id ?? 0));
   app.use(morgan("w:worker :method :url :status :res[content-length] - :response-time ms"));
+  app.use(coalesceWrites());
   app.all("*", createRequestHandler({ build, mode: process.env.NODE_ENV }));
 
   const server = host ? app.listen(port, host) : app.listen(port);
