@@ -50,9 +50,9 @@ function shortWhere(frame: CallFrame): string {
 
 /**
  * `fromFirst`: samples before the first one whose stack holds a function of this name are left out, so that the
- * process's start (compiling modules) does not count as serving.
+ * process's start (compiling modules) does not count as serving; `skipMs` leaves out that much more (a warm-up).
  */
-export function summariseProfile(file: string, options: { inclusive?: string[]; fromFirst?: string } = {}): ProfileSummary {
+export function summariseProfile(file: string, options: { inclusive?: string[]; fromFirst?: string; skipMs?: number } = {}): ProfileSummary {
   const inclusiveNames = options.inclusive ?? [];
   const profile = JSON.parse(readFileSync(file, "utf8")) as CpuProfile;
   const byId = new Map(profile.nodes.map((n) => [n.id, n]));
@@ -67,6 +67,8 @@ export function summariseProfile(file: string, options: { inclusive?: string[]; 
     first = profile.samples.findIndex((id) => onStack(id, options.fromFirst!));
     if (first < 0) first = 0;
   }
+  // `skipMs`: and the warm-up after it.
+  for (let skipped = 0; options.skipMs && first < profile.samples.length && skipped < options.skipMs * 1000; first++) skipped += profile.timeDeltas[first] ?? 0;
   const selfUs = new Map<number, number>();
   let totalUs = 0;
   for (let i = first; i < profile.samples.length; i++) {
