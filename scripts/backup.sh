@@ -1,11 +1,12 @@
 #!/usr/bin/env bash
 # npm run db:backup [-- FILE] / npm run db:restore -- FILE: a logical dump with mariadb-dump, and its restore.
-# Uses DATABASE_URL when set, else the embedded database.
+# Runs as the schema's owner: MIGRATION_DATABASE_URL (else DATABASE_URL) when set, else the embedded migration account.
+# Row rights of the runtime account are kept by name, so they hold again once a restore has re-created the tables.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 export PATH=$PATH:/usr/sbin
 mode=${1:?usage: scripts/backup.sh backup|restore [file]}
-url=${DATABASE_URL:-$(bash scripts/db.sh url "${BANDLEDGER_DB_NAME:-bandledger}")}
+url=${MIGRATION_DATABASE_URL:-${DATABASE_URL:-$(bash scripts/db.sh url "${BANDLEDGER_DB_NAME:-bandledger}" migrate)}}
 eval "$(node -e '
   const u = new URL(process.argv[1]);
   const q = (s) => "\x27" + decodeURIComponent(s).replace(/\x27/g, "\x27\\\x27\x27") + "\x27";

@@ -1,6 +1,10 @@
 #!/usr/bin/env bash
 # The embedded MariaDB: a project-local server on loopback, from Debian's packages.
-# usage: scripts/db.sh start|stop|status|ensure-databases
+# usage: scripts/db.sh start|stop|status|url [database] [runtime|migrate]|ensure-databases
+# Three accounts: root only through the Unix socket (no password over TCP); bandledger_migrate, which owns the
+# schema (migrations, triggers, test databases, restores); bandledger, the runtime account of the app, which
+# may read and write rows but never change the schema, and only append to the audit log, revisions and releases
+# (its table grants are given by the migration step, app/.server/db/grants.ts).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 ROOT=$(pwd)
@@ -13,6 +17,8 @@ PID_FILE=$RUN_DIR/mariadb.pid
 LOG=$DATA_DIR/mariadb.log
 APP_USER=bandledger
 PASS_FILE=$DATA_DIR/db-password
+MIGRATE_USER=bandledger_migrate
+MIGRATE_PASS_FILE=$DATA_DIR/db-migrate-password
 
 say() { printf 'bandledger db: %s\n' "$*" >&2; }
 
@@ -59,7 +65,7 @@ start() {
   if [ ! -d "$DB_DIR/mysql" ]; then
     say "initialising a new data directory in $DB_DIR"
     mariadb-install-db --no-defaults --datadir="$DB_DIR" --user=root \
-      --auth-root-authentication-method=normal --skip-test-db --skip-name-resolve \
+      --auth-root-authentication-method=socket --skip-test-db --skip-name-resolve \
       --cross-bootstrap >"$DATA_DIR/mariadb-install.log" 2>&1 || { say "initialisation failed, see $DATA_DIR/mariadb-install.log"; exit 1; }
   fi
   setsid mariadbd --no-defaults --datadir="$DB_DIR" --socket="$SOCK" --pid-file="$PID_FILE" \
@@ -83,19 +89,34 @@ start() {
   ensure_databases
 }
 
+password_file() {
+  [ -f "$1" ] || { head -c 18 /dev/urandom | base64 | tr -d '/+=' >"$1"; chmod 600 "$1"; }
+  cat "$1"
+}
+
 ensure_databases() {
-  [ -f "$PASS_FILE" ] || { head -c 18 /dev/urandom | base64 | tr -d '/+=' >"$PASS_FILE"; chmod 600 "$PASS_FILE"; }
-  local pass; pass=$(cat "$PASS_FILE")
+  local pass migrate_pass legacy
+  pass=$(password_file "$PASS_FILE")
+  migrate_pass=$(password_file "$MIGRATE_PASS_FILE")
+  # Data directories made before the accounts were split: root had no password over TCP, the app had ALL and SUPER.
+  legacy=$(client -N -e "SELECT COUNT(*) FROM mysql.user WHERE (user = 'root' AND host <> 'localhost') OR (user = '$APP_USER' AND Super_priv = 'Y')")
   client <<SQL
 CREATE DATABASE IF NOT EXISTS bandledger CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;
 CREATE DATABASE IF NOT EXISTS bandledger_test CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;
+DROP USER IF EXISTS 'root'@'127.0.0.1', 'root'@'::1';
+ALTER USER 'root'@'localhost' IDENTIFIED VIA unix_socket;
+CREATE USER IF NOT EXISTS '$MIGRATE_USER'@'127.0.0.1' IDENTIFIED BY '$migrate_pass';
+ALTER USER '$MIGRATE_USER'@'127.0.0.1' IDENTIFIED BY '$migrate_pass';
+GRANT ALL PRIVILEGES ON \`bandledger\`.* TO '$MIGRATE_USER'@'127.0.0.1' WITH GRANT OPTION;
+GRANT ALL PRIVILEGES ON \`bandledger\\_test%\`.* TO '$MIGRATE_USER'@'127.0.0.1' WITH GRANT OPTION;
 CREATE USER IF NOT EXISTS '$APP_USER'@'127.0.0.1' IDENTIFIED BY '$pass';
 ALTER USER '$APP_USER'@'127.0.0.1' IDENTIFIED BY '$pass';
-GRANT ALL PRIVILEGES ON \`bandledger\`.* TO '$APP_USER'@'127.0.0.1';
-GRANT ALL PRIVILEGES ON \`bandledger\\_test%\`.* TO '$APP_USER'@'127.0.0.1';
-GRANT SUPER ON *.* TO '$APP_USER'@'127.0.0.1';
 FLUSH PRIVILEGES;
 SQL
+  if [ "$legacy" != "0" ]; then
+    say "splitting the database accounts: the app's account loses schema rights (the migrations grant its table rights)"
+    client -e "REVOKE ALL PRIVILEGES, GRANT OPTION FROM '$APP_USER'@'127.0.0.1'; FLUSH PRIVILEGES;"
+  fi
 }
 
 stop() {
@@ -115,14 +136,20 @@ status() {
 }
 
 url() {
-  echo "mysql://$APP_USER:$(cat "$PASS_FILE")@127.0.0.1:$PORT/${1:-bandledger}"
+  local db=${1:-bandledger}
+  [ -n "$db" ] || db=bandledger
+  case "${2:-runtime}" in
+    runtime) echo "mysql://$APP_USER:$(cat "$PASS_FILE")@127.0.0.1:$PORT/$db" ;;
+    migrate) echo "mysql://$MIGRATE_USER:$(cat "$MIGRATE_PASS_FILE")@127.0.0.1:$PORT/$db" ;;
+    *) echo "usage: scripts/db.sh url [database] [runtime|migrate]" >&2; exit 2 ;;
+  esac
 }
 
 case "${1:-}" in
   start) start ;;
   stop) stop ;;
   status) status ;;
-  url) url "${2:-}" ;;
+  url) url "${2:-}" "${3:-runtime}" ;;
   ensure-databases) ensure_databases ;;
-  *) echo "usage: scripts/db.sh start|stop|status|url [database]" >&2; exit 2 ;;
+  *) echo "usage: scripts/db.sh start|stop|status|url [database] [runtime|migrate]" >&2; exit 2 ;;
 esac

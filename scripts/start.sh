@@ -9,8 +9,7 @@ export NODE_ENV=production
 export PORT=${PORT:-3000}
 export HOST=${HOST:-127.0.0.1}
 export BANDLEDGER_PUBLIC_URL=${BANDLEDGER_PUBLIC_URL:-http://$HOST:$PORT}
-# The local mailbox page is a development aid; npm start serves the demo, so it is on unless switched off.
-export BANDLEDGER_MAILBOX=${BANDLEDGER_MAILBOX:-on}
+. scripts/mailbox-default.sh
 
 pids=()
 started_db=0
@@ -48,7 +47,7 @@ cat >&2 <<MSG
 
   Bandledger is serving on $BANDLEDGER_PUBLIC_URL with ${BANDLEDGER_WORKERS:-$(nproc)} worker processes  (request log: ${BANDLEDGER_LOG:-.data/app.log})
   Sign in to the demo with one of the team's addresses, e.g. ines.carvalho@kestrel-devices.test (admin)
-  or ravi.menon@kestrel-devices.test (lead); the code arrives in the local mailbox at $BANDLEDGER_PUBLIC_URL/dev/mailbox
+  or ravi.menon@kestrel-devices.test (lead); $( [ "$BANDLEDGER_MAILBOX" = on ] && echo "the code arrives in the local mailbox at $BANDLEDGER_PUBLIC_URL/dev/mailbox (open it in a browser on this machine)" || echo "the code is mailed through ${SMTP_URL:-the local sink} (the local mailbox page is off)" )
   Ctrl-C stops the app and the database it started.
 
 MSG

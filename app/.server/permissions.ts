@@ -32,7 +32,9 @@ export const currentUserColumns = {
 };
 
 export function toCurrentUser(row: { id: number; email: string; name: string; role: Role; leads: string | null }): CurrentUser {
-  return { id: row.id, email: row.email, name: row.name, role: row.role, leadFamilyIds: row.leads ? row.leads.split(",").map(Number) : [] };
+  // Families count only for the lead role: an assignment left behind never lends a lead's rights to anyone else.
+  const leadFamilyIds = row.role === "lead" && row.leads ? row.leads.split(",").map(Number) : [];
+  return { id: row.id, email: row.email, name: row.name, role: row.role, leadFamilyIds };
 }
 
 export async function loadUser(userId: number): Promise<CurrentUser | null> {

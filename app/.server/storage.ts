@@ -111,19 +111,43 @@ function utf8Strict(bytes: Uint8Array): boolean {
   }
 }
 
-/**
- * Reads a posted form, multipart or not, refusing a body over the limit before it is all in memory (React
- * Router's request.formData() would read any size). Another content type is a 415, a body that is not a
- * well-formed form (broken multipart, bytes that are not UTF-8) a 400; both thrown as a page with the reason.
- */
-export async function readLimitedFormData(request: Request, maxBytes: number): Promise<FormData> {
+function refuseDeclaredOver(request: Request, maxBytes: number): void {
   const declared = Number(request.headers.get("content-length") ?? "0");
   if (declared > maxBytes) throw new StorageError("too_large", `The upload is ${formatBytes(declared)}; at most ${formatBytes(maxBytes)} is taken.`);
-  const type = request.headers.get("content-type");
-  if (type !== null && !FORM_TYPE.test(type)) {
-    unreadableForm(415, `This address takes a form (application/x-www-form-urlencoded or multipart/form-data), not ${type.split(";")[0].trim().slice(0, 60) || "an empty content type"}.`);
-  }
-  if (!request.body) return new FormData();
+}
+
+// Refusing a body while the client still sends it: cancelling at once resets the connection, and the client may
+// lose the answer. Read and drop what keeps coming for a short while (a lingering close), then cancel.
+const LINGER_MS = 2_000;
+const LINGER_BYTES = 16 * 1024 * 1024;
+function lingerThenCancel(reader: ReadableStreamDefaultReader<Uint8Array>): void {
+  const cancel = () => void reader.cancel().catch(() => undefined);
+  const timer = setTimeout(cancel, LINGER_MS);
+  const until = Date.now() + LINGER_MS;
+  void (async () => {
+    let dropped = 0;
+    try {
+      for (;;) {
+        const { done, value } = await reader.read();
+        if (done) break;
+        dropped += value.length;
+        if (dropped > LINGER_BYTES || Date.now() > until) {
+          cancel();
+          break;
+        }
+      }
+    } catch {
+      /* cancelled, or the client went away: nothing left to drop */
+    } finally {
+      clearTimeout(timer);
+    }
+  })();
+}
+
+/** The raw body, read as it arrives and refused (StorageError "too_large") once it passes the limit. */
+export async function readLimitedBody(request: Request, maxBytes: number): Promise<Buffer<ArrayBuffer>> {
+  refuseDeclaredOver(request, maxBytes);
+  if (!request.body) return Buffer.alloc(0);
   const chunks: Uint8Array[] = [];
   let total = 0;
   const reader = request.body.getReader();
@@ -132,12 +156,26 @@ export async function readLimitedFormData(request: Request, maxBytes: number): P
     if (done) break;
     total += value.length;
     if (total > maxBytes) {
-      await reader.cancel();
+      lingerThenCancel(reader);
       throw new StorageError("too_large", `The upload is over ${formatBytes(maxBytes)}; at most ${formatBytes(maxBytes)} is taken.`);
     }
     chunks.push(value);
   }
-  const body = Buffer.concat(chunks);
+  return Buffer.concat(chunks);
+}
+
+/**
+ * Reads a posted form, multipart or not, refusing a body over the limit before it is all in memory (React
+ * Router's request.formData() would read any size). Another content type is a 415, a body that is not a
+ * well-formed form (broken multipart, bytes that are not UTF-8) a 400; both thrown as a page with the reason.
+ */
+export async function readLimitedFormData(request: Request, maxBytes: number): Promise<FormData> {
+  refuseDeclaredOver(request, maxBytes);
+  const type = request.headers.get("content-type");
+  if (type !== null && !FORM_TYPE.test(type)) {
+    unreadableForm(415, `This address takes a form (application/x-www-form-urlencoded or multipart/form-data), not ${type.split(";")[0].trim().slice(0, 60) || "an empty content type"}.`);
+  }
+  const body = await readLimitedBody(request, maxBytes);
   // Bytes that do not say what they are are not read as a form: no browser sends a form without its type.
   if (type === null && body.length > 0) unreadableForm(415, "This address takes a form (application/x-www-form-urlencoded or multipart/form-data); the request did not say what it sent.");
   const contentType = type ?? "application/x-www-form-urlencoded";
@@ -158,7 +196,7 @@ export async function readForm(request: Request): Promise<FormData> {
   try {
     return await readLimitedFormData(request, MAX_PLAIN_FORM_BYTES);
   } catch (e) {
-    if (e instanceof StorageError) throw data({ message: e.message }, { status: 413, statusText: "The form is too large" });
+    if (e instanceof StorageError) throw data({ message: e.message }, { status: 413, statusText: "The form is too large", headers: { Connection: "close" } });
     throw e;
   }
 }

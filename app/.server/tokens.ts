@@ -31,11 +31,24 @@ export async function listApiTokens(userId: number): Promise<TokenListRow[]> {
     .orderBy(desc(apiTokens.createdAt), desc(apiTokens.id));
 }
 
-export async function createApiToken(user: CurrentUser, name: string, request: Request): Promise<{ id: number; token: string; prefix: string }> {
+// Enough for every pipeline a person runs; a cap keeps one account from spreading a flood over endless tokens.
+export const MAX_ACTIVE_TOKENS = 10;
+
+export type CreatedToken = { ok: true; id: number; token: string; prefix: string } | { ok: false; message: string };
+
+export async function createApiToken(user: CurrentUser, name: string, request: Request): Promise<CreatedToken> {
   const { token, prefix, hash } = generateToken();
-  const [{ id }] = await db().insert(apiTokens).values({ userId: user.id, name, tokenHash: hash, prefix }).$returningId();
-  await audit({ id: user.id, email: user.email }, "token.created", { type: "api_token", id }, request, { name, prefix });
-  return { id, token, prefix };
+  // The user's row is locked while counting, so two requests at once cannot both take the last place.
+  const created = await db().transaction(async (tx) => {
+    await tx.select({ id: users.id }).from(users).where(eq(users.id, user.id)).for("update");
+    const [{ n }] = await tx.select({ n: sql<number>`COUNT(*)` }).from(apiTokens).where(and(eq(apiTokens.userId, user.id), isNull(apiTokens.revokedAt)));
+    if (Number(n) >= MAX_ACTIVE_TOKENS) return null;
+    const [{ id }] = await tx.insert(apiTokens).values({ userId: user.id, name, tokenHash: hash, prefix }).$returningId();
+    return id;
+  });
+  if (created === null) return { ok: false, message: `You already have ${MAX_ACTIVE_TOKENS} active tokens, the most one person may hold. Revoke one you no longer use, then make the new one.` };
+  await audit({ id: user.id, email: user.email }, "token.created", { type: "api_token", id: created }, request, { name, prefix });
+  return { ok: true, id: created, token, prefix };
 }
 
 export async function revokeApiToken(user: CurrentUser, tokenId: number, request: Request): Promise<boolean> {

@@ -42,6 +42,7 @@ export async function action({ request }: Route.ActionArgs) {
     const name = tokenNameField.safeParse(values.tokenName ?? "");
     if (!name.success) return fail({ tokenName: name.error.issues[0].message });
     const created = await createApiToken(user, name.data, request);
+    if (!created.ok) return fail({ tokenName: created.message });
     return data<ActionResult>({ intent, errors: {}, values: {}, createdToken: { name: name.data, token: created.token } });
   }
   if (intent === "revoke-token") {

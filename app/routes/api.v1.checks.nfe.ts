@@ -2,6 +2,7 @@ import type { Route } from "./+types/api.v1.checks.nfe";
 import { nfeCheckBodySchema } from "~/domain/api-schemas";
 import { requireApiCaller } from "~/.server/api/guard";
 import { runNfeCheck } from "~/.server/api/nfe";
+import { guardSolve } from "~/.server/checks/solve-guard";
 import { apiError, apiJson, parseJsonBody, runApi } from "~/.server/api/respond";
 
 export async function loader() {
@@ -12,8 +13,7 @@ export async function loader() {
 export async function action({ request }: Route.ActionArgs) {
   return runApi(async () => {
     if (request.method !== "POST") throw apiError(400, "method_not_allowed", "Only POST runs the check.", null, { Allow: "POST" });
-    await requireApiCaller(request);
-    const body = await parseJsonBody(nfeCheckBodySchema, request);
-    return apiJson(runNfeCheck(body));
+    const caller = await requireApiCaller(request);
+    return guardSolve(caller.user.id, async () => apiJson(runNfeCheck(await parseJsonBody(nfeCheckBodySchema, request))));
   });
 }

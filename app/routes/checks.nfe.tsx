@@ -2,6 +2,7 @@ import { useEffect, useRef, useState } from "react";
 import { data, Form, Link, useFetcher } from "react-router";
 import type { Route } from "./+types/checks.nfe";
 import { NFE_MAX_ROWS, nfeQueryOf, runNfePage, type NfeFormValues, type NfePageData } from "~/.server/checks";
+import { guardSolveOrRespond } from "~/.server/checks/solve-guard";
 import { requireUser } from "~/.server/permissions";
 import { NfePlot, VerdictBadge } from "~/components/checks";
 import { FieldError, invalidProps } from "~/components/field-error";
@@ -32,9 +33,9 @@ const EXAMPLES: { label: string; hint: string; values: NfeFormValues }[] = [
 ];
 
 export async function loader({ request }: Route.LoaderArgs) {
-  await requireUser(request);
+  const user = await requireUser(request);
   const params = new URL(request.url).searchParams;
-  const page = runNfePage(params);
+  const page = await guardSolveOrRespond(user.id, () => runNfePage(params), "page");
   const body = { ...page, maxRows: NFE_MAX_ROWS, examples: EXAMPLES.map((e) => ({ label: e.label, hint: e.hint, query: nfeQueryOf(e.values).toString() })) };
   // A query with wrong inputs is a bad request: the page shows the messages at their fields with a 400.
   const live = params.get("live") === "1";

@@ -1,15 +1,14 @@
 import { Fragment } from "react";
 import { data, Link } from "react-router";
 import type { Route } from "./+types/dev.mailbox.$file";
-import { env } from "~/.server/env";
-import { readMailboxMessage } from "~/.server/mail/mailbox";
+import { readMailboxMessage, requireLocalMailbox } from "~/.server/mail/mailbox";
 
 export const meta: Route.MetaFunction = ({ data: d }) => [{ title: `${d?.message.subject ?? "Message"} · Local mailbox · Bandledger` }];
 
-// Open while the local mailbox is switched on; the file name is checked against the sink's own pattern.
+// For this machine's own browser while the local mailbox is on; the file name is checked against the sink's own pattern.
 export async function loader({ params }: Route.LoaderArgs) {
-  if (!env().mailboxEnabled) throw data({ message: "Not found" }, { status: 404 });
-  const message = await readMailboxMessage(env().mailboxDir, params.file);
+  const { dir } = requireLocalMailbox();
+  const message = await readMailboxMessage(dir, params.file);
   if (!message) throw data({ message: "Not found" }, { status: 404 });
   return { message: { ...message, receivedAt: message.receivedAt.toISOString() } };
 }

@@ -1,15 +1,14 @@
-import { data, Link } from "react-router";
+import { Link } from "react-router";
 import type { Route } from "./+types/dev.mailbox";
-import { env } from "~/.server/env";
-import { listMailbox } from "~/.server/mail/mailbox";
+import { listMailbox, requireLocalMailbox } from "~/.server/mail/mailbox";
 
 export const meta: Route.MetaFunction = () => [{ title: "Local mailbox · Bandledger" }];
 
-// A development aid: open to everyone while the local mailbox is switched on, absent otherwise.
+// A development aid for this machine's own browser while the local mailbox is switched on, absent otherwise.
 export async function loader(_: Route.LoaderArgs) {
-  if (!env().mailboxEnabled) throw data({ message: "Not found" }, { status: 404 });
-  const messages = await listMailbox(env().mailboxDir);
-  return { dir: env().mailboxDir, messages: messages.map((m) => ({ ...m, receivedAt: m.receivedAt.toISOString() })) };
+  const { dir } = requireLocalMailbox();
+  const messages = await listMailbox(dir);
+  return { messages: messages.map((m) => ({ ...m, receivedAt: m.receivedAt.toISOString() })) };
 }
 
 export default function DevMailbox({ loaderData }: Route.ComponentProps) {
@@ -19,7 +18,7 @@ export default function DevMailbox({ loaderData }: Route.ComponentProps) {
         <p className="label">Development only</p>
         <h1 id="mailbox-title" className="mt-1 text-2xl font-semibold tracking-tight">Local mailbox</h1>
         <p className="mt-1 text-sm text-muted">
-          Every message Bandledger sent to the local mail sink, newest first. Nothing here left this machine. Kept in <code className="font-mono text-xs">{loaderData.dir}</code>.
+          Every message Bandledger sent to the local mail sink, newest first. Nothing here left this machine, and only a browser on this machine can open it.
         </p>
       </div>
       {loaderData.messages.length === 0 ? (

@@ -19,7 +19,7 @@ export async function loader({ request }: Route.LoaderArgs) {
     email: state.pending.email,
     requestedAt: new Date(state.pending.requestedAt).toISOString(),
     state: state.kind,
-    message: state.kind === "ready" ? null : signInMessage(state.kind === "void" ? "code-void" : state.kind === "expired" ? "code-expired" : "code-missing"),
+    message: state.kind === "ready" ? null : signInMessage(`code-${state.kind}`),
     triesLeft: Math.max(0, CODE_MAX_WRONG_TRIES - state.wrongTries),
   };
 }
@@ -41,7 +41,7 @@ export async function action({ request }: Route.ActionArgs) {
   if (result.ok) return result.response;
   return data(
     { errors: { code: signInMessage(result.error) }, retryAt: null, triesLeft: Math.max(0, CODE_MAX_WRONG_TRIES - result.wrongTries) },
-    { status: 400, headers: result.headers },
+    { status: result.status, headers: result.headers },
   );
 }
 

@@ -6,11 +6,10 @@ import path from "node:path";
 import { parseArgs } from "node:util";
 import autocannon from "autocannon";
 import mysql from "mysql2/promise";
-import { createDatabase, dropDatabase, runMigrations } from "~/.server/db/migrate";
 import { startSink } from "~/.server/mail/sink";
 import { generateSyntheticRegistry } from "../../seed-data/synthetic";
 import { startAppServer, type AppServer } from "../support/app-server";
-import { baseDatabaseUrl } from "../support/env";
+import { createTestDatabase } from "../support/db";
 import { sessionCookieValue } from "../support/session";
 import { pageWeight, type PageWeight } from "./page-weight";
 import { printProfile, summariseProfile, type ProfileSummary } from "./profile-summary";
@@ -57,10 +56,8 @@ type SizeResult = { rows: Record<number, Row[]>; weight: Weight; meta: unknown; 
 type Weight = { registry: PageWeight & { gzipBytes: number; brBytes: number; dataRequestBytes: number; dataRequestBrBytes: number }; release: Record<string, number> };
 
 async function prepare(revisions: number) {
-  const base = baseDatabaseUrl();
   const name = `bandledger_test_bench_${revisions}_${process.pid}`;
-  const url = await createDatabase(base, name);
-  await runMigrations(url);
+  const { url, drop } = await createTestDatabase(name);
   // At least SET_SIZE records at every size (one revision each at 1,000), so the frozen set and a filtered page
   // hold the same number of values in both runs and the growth ratio compares like with like.
   const summary = await generateSyntheticRegistry(url, { revisions, revisionsPerRecord: Math.max(1, Math.min(3, Math.floor(revisions / SET_SIZE))) });
@@ -77,7 +74,7 @@ async function prepare(revisions: number) {
   await conn.query("INSERT INTO api_tokens (user_id, name, token_hash, prefix) VALUES (?, 'bench', ?, ?)", [admin.id, hash, prefix]);
   const [[anyMaterial]] = (await conn.query("SELECT f.`key` AS family FROM materials m JOIN material_families f ON f.id = m.family_id ORDER BY m.id LIMIT 1")) as unknown as [{ family: string }[]];
   await conn.end();
-  return { base, name, url, adminId: admin.id, token, family: anyMaterial.family, summary };
+  return { drop, name, url, adminId: admin.id, token, family: anyMaterial.family, summary };
 }
 
 async function freeze(url: string, adminId: number) {
@@ -234,7 +231,7 @@ if (args.only) {
   const cookie = `__bandledger=${await sessionCookieValue(p.adminId)}`;
   const ctx = () => ({ cookie, token: p.token, family: p.family, sha256: written.sha256 });
   const start = (extra: { workers: number; nodeArgs?: string[] }) =>
-    startAppServer({ databaseUrl: p.url, smtpPort: sink.port, mailboxDir, ...extra, extraEnv: { BANDLEDGER_API_RATE_PER_MINUTE: "100000000" } });
+    startAppServer({ databaseUrl: p.url, smtpPort: sink.port, mailboxDir, ...extra, extraEnv: { BANDLEDGER_API_RATE_PER_MINUTE: "100000000", BANDLEDGER_CHECK_RATE_PER_MINUTE: "100000000" } });
   const result: SizeResult = { rows: {}, weight: undefined as unknown as Weight, meta: { ...p.summary, releaseItems: written.itemCount, releaseSha256: written.sha256 } };
   try {
     for (const workers of WORKER_COUNTS) {
@@ -256,7 +253,7 @@ if (args.only) {
     writeFileSync(args.out!, JSON.stringify(result));
   } finally {
     await sink.close();
-    await dropDatabase(p.base, p.name);
+    await p.drop();
   }
   process.exit(0);
 }

@@ -3,11 +3,10 @@ import os from "node:os";
 import path from "node:path";
 import { parseArgs } from "node:util";
 import mysql from "mysql2/promise";
-import { createDatabase, dropDatabase, runMigrations } from "~/.server/db/migrate";
 import { startSink } from "~/.server/mail/sink";
 import { generateSyntheticRegistry } from "../../seed-data/synthetic";
 import { startAppServer } from "../support/app-server";
-import { baseDatabaseUrl } from "../support/env";
+import { createTestDatabase } from "../support/db";
 import { sessionCookieValue } from "../support/session";
 
 // The registry pages over a synthetic registry of 100,000 revisions, served by the production build: a fresh
@@ -85,12 +84,10 @@ const fmt = (ms: number) => ms.toFixed(1).padStart(7);
 
 async function main() {
   if (!existsSync("build/server/index.js")) throw new Error("no production build: run `npx react-router build` first");
-  const base = baseDatabaseUrl();
   const name = `bandledger_test_bench_${process.pid}`;
-  const url = await createDatabase(base, name);
+  const { url, drop } = await createTestDatabase(name);
   let stop = async () => {};
   try {
-    await runMigrations(url);
     const summary = await generateSyntheticRegistry(url, { revisions: REVISIONS });
     console.log(`synthetic registry: ${summary.materials} materials, ${summary.records} records, ${summary.revisions} revisions, ${summary.sources} sources (built in ${summary.seconds.toFixed(1)} s)`);
     const connection = await mysql.createConnection({ uri: url });
@@ -125,7 +122,7 @@ async function main() {
   } finally {
     await stop();
     if (args.keep) console.log(`kept database ${name}`);
-    else await dropDatabase(base, name);
+    else await drop();
   }
 }
 

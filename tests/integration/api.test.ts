@@ -8,6 +8,7 @@ import {
 } from "~/domain/api-schemas";
 import { verifyReleaseText } from "~/domain/release-format";
 import { hashToken } from "~/.server/tokens";
+import { streamUntilAnswered } from "../support/faults";
 import { startDemoServer, type DemoServer } from "./api-fixture";
 
 // External checks of the nearly-free-electron endpoint: [Kittel] C. Kittel, Introduction to Solid State Physics,
@@ -301,6 +302,15 @@ describe("POST /api/v1/checks/nfe", () => {
     expectError(await call("/api/v1/checks/nfe", { method: "POST", token: tokens.reader, body: "{", headers: { "Content-Type": "application/json" } }), 400, "invalid_json");
     expectError(await call("/api/v1/checks/nfe", { method: "POST", token: tokens.reader, body: "a=1", headers: { "Content-Type": "application/x-www-form-urlencoded" } }), 400, "invalid_content_type");
     expectError(await reader("/api/v1/checks/nfe"), 400, "method_not_allowed");
+  });
+
+  it("refuses a body over 256 kB with 413 while it arrives, whether its length is declared or streamed", async () => {
+    const big = JSON.stringify({ periodAngstrom: 5.65325, coefficients: [{ n: 1, valueEv: 0.1 }], notes: "x".repeat(300 * 1024) });
+    expectError(await call("/api/v1/checks/nfe", { method: "POST", token: tokens.reader, body: big, headers: { "Content-Type": "application/json" } }), 413, "too_large");
+    const streamed = await streamUntilAnswered(demo.url + "/api/v1/checks/nfe", { "content-type": "application/json", authorization: `Bearer ${tokens.reader}` }, Buffer.from("[" + "0,".repeat(32 * 1024)), 64 * 1024 * 1024);
+    expect(streamed.status).toBe(413);
+    expect(JSON.parse(streamed.text)).toMatchObject({ error: { code: "too_large" } });
+    expect(streamed.sentBytes).toBeLessThan(16 * 1024 * 1024);
   });
 });
 

@@ -5,14 +5,16 @@ import { databaseRefusal, freshDatabase, type TestDatabase } from "../support/db
 
 let t: TestDatabase;
 let audit: typeof import("~/.server/audit");
+let peer: typeof import("~/.server/auth/client-address");
 
 beforeAll(async () => {
   t = await freshDatabase("audit");
   // The service reads its database and proxy setting from the environment, once.
   process.env.DATABASE_URL = t.url;
   process.env.SESSION_SECRET = "audit-test-session-secret-0123456789abcdef";
-  process.env.TRUST_PROXY = "1";
+  process.env.TRUST_PROXY = "10.0.0.1";
   audit = await import("~/.server/audit");
+  peer = await import("~/.server/auth/client-address");
 });
 afterAll(async () => {
   const { closeDb } = await import("~/.server/db/client");
@@ -24,7 +26,8 @@ describe("audit()", () => {
   it("writes who, what, about what, from which address and when", async () => {
     const request = new Request("http://bandledger.test/admin/users", { headers: { "x-forwarded-for": "192.0.2.10" } });
     const before = Date.now();
-    await audit.audit({ id: 7, email: "ines@example.test" }, "user.invited", { type: "user", id: 42 }, request, { role: "reader" });
+    // As served through the listed proxy 10.0.0.1, which appended the client's address.
+    await peer.runWithPeerAddress("10.0.0.1", () => audit.audit({ id: 7, email: "ines@example.test" }, "user.invited", { type: "user", id: 42 }, request, { role: "reader" }));
     const [row] = await t.db.select().from(auditLog).where(eq(auditLog.action, "user.invited"));
     expect(row).toMatchObject({ actorId: 7, actorEmail: "ines@example.test", targetType: "user", targetId: "42", ip: "192.0.2.10", detail: { role: "reader" } });
     expect(Math.abs(row.at.getTime() - before)).toBeLessThan(5_000);
@@ -41,9 +44,13 @@ describe("the audit table is append-only in the database", () => {
   it("refuses UPDATE, DELETE and REPLACE of an entry, whoever sends them", async () => {
     await audit.audit({ id: 1, email: "a@example.test" }, "auth.sign_in", { type: "user", id: 1 }, null);
     const [row] = await t.db.select().from(auditLog).where(eq(auditLog.action, "auth.sign_in"));
-    expect(await databaseRefusal(t.db.update(auditLog).set({ action: "auth.sign_out" }).where(eq(auditLog.id, row.id)))).toMatch(/append-only/);
-    expect(await databaseRefusal(t.db.delete(auditLog).where(eq(auditLog.id, row.id)))).toMatch(/append-only/);
-    expect(await databaseRefusal(t.pool.query("REPLACE INTO audit_log (id, action) VALUES (?, 'forged')", [row.id]))).toMatch(/append-only/);
+    // The app's own account has no right to change or remove a row; the schema's owner is stopped by the triggers.
+    expect(await databaseRefusal(t.db.update(auditLog).set({ action: "auth.sign_out" }).where(eq(auditLog.id, row.id)))).toMatch(/UPDATE command denied/);
+    expect(await databaseRefusal(t.db.delete(auditLog).where(eq(auditLog.id, row.id)))).toMatch(/DELETE command denied/);
+    expect(await databaseRefusal(t.pool.query("REPLACE INTO audit_log (id, action) VALUES (?, 'forged')", [row.id]))).toMatch(/DELETE command denied/);
+    expect(await databaseRefusal(t.admin.db.update(auditLog).set({ action: "auth.sign_out" }).where(eq(auditLog.id, row.id)))).toMatch(/append-only/);
+    expect(await databaseRefusal(t.admin.db.delete(auditLog).where(eq(auditLog.id, row.id)))).toMatch(/append-only/);
+    expect(await databaseRefusal(t.admin.pool.query("REPLACE INTO audit_log (id, action) VALUES (?, 'forged')", [row.id]))).toMatch(/append-only/);
     const [still] = await t.db.select().from(auditLog).where(eq(auditLog.id, row.id));
     expect(still.action).toBe("auth.sign_in");
   });

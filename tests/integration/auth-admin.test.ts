@@ -103,6 +103,23 @@ describe("roles and deactivation", () => {
     expect((row.detail as { leadFamiliesRemoved: number[] }).leadFamiliesRemoved).toHaveLength(2);
   });
 
+  it("removes the assignments on the way lead → admin → contributor too, and never lets a stale one count", async () => {
+    const [{ id }] = await t.db.insert(users).values({ email: "lale.demir@kestrel-devices.test", name: "Lale Demir", role: "lead" }).$returningId();
+    const families = await t.db.select().from(materialFamilies).limit(2);
+    await t.db.insert(familyLeads).values(families.map((f) => ({ userId: id, familyId: f.id })));
+    expect((await admin.post("/admin/users", { intent: "role", userId: String(id), version: String((await user(id)).version), role: "admin" })).status).toBe(302);
+    expect(await t.db.select().from(familyLeads).where(eq(familyLeads.userId, id))).toEqual([]);
+    expect((await admin.post("/admin/users", { intent: "role", userId: String(id), version: String((await user(id)).version), role: "contributor" })).status).toBe(302);
+    expect((await user(id)).role).toBe("contributor");
+    // An assignment left behind by hand (or by an older version) gives a contributor no lead's rights.
+    await t.db.insert(familyLeads).values({ userId: id, familyId: families[0].id });
+    const lale = await HttpClient.signedIn(app.url, id);
+    const whoami = (await (await lale.get("/api/v1/whoami")).json()) as { user: { role: string; leadFamilyIds: number[] } };
+    expect(whoami.user).toMatchObject({ role: "contributor", leadFamilyIds: [] });
+    expect((await lale.get("/review")).status).toBe(403);
+    await t.db.delete(familyLeads).where(eq(familyLeads.userId, id));
+  });
+
   it("never leaves the team without an active admin", async () => {
     const ines = await user(ids.ines);
     const demote = await admin.post("/admin/users", { intent: "role", userId: String(ines.id), version: String(ines.version), role: "lead" });

@@ -1,10 +1,11 @@
+import { createHash } from "node:crypto";
 import { mkdtempSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { and, eq } from "drizzle-orm";
 import { createCookieSessionStorage } from "react-router";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { auditLog, signInRequests, users } from "~/.server/db/schema";
+import { auditLog, signInCodes, signInRequests, users } from "~/.server/db/schema";
 import { startSink, type Sink } from "~/.server/mail/sink";
 import { loadTeam } from "../../seed-data/load";
 import { startAppServer, type AppServer } from "../support/app-server";
@@ -26,7 +27,7 @@ let mailboxDir: string;
 let app: AppServer;
 let ipCounter = 0;
 
-// Behind TRUST_PROXY=1 every test speaks from an address of its own, so the per-address limit of one test never meets another's.
+// Behind TRUST_PROXY=127.0.0.1 (a proxy on this host) every test speaks from an address of its own, so the per-address limit of one test never meets another's.
 function client(extra: Record<string, string> = {}) {
   ipCounter += 1;
   return new HttpClient(app.url, { "x-forwarded-for": `203.0.113.7, 10.9.0.${ipCounter}`, ...extra });
@@ -55,7 +56,7 @@ beforeAll(async () => {
   await loadTeam(t.db);
   mailboxDir = mkdtempSync(path.join(os.tmpdir(), "bl-auth-mail-"));
   sink = await startSink({ port: 0, dir: mailboxDir });
-  app = await startAppServer({ databaseUrl: t.url, smtpPort: sink.port, mailboxDir, extraEnv: { TRUST_PROXY: "1" } });
+  app = await startAppServer({ databaseUrl: t.url, smtpPort: sink.port, mailboxDir, extraEnv: { TRUST_PROXY: "127.0.0.1" } });
 });
 afterAll(async () => {
   await app?.stop();
@@ -164,6 +165,75 @@ describe("sign-in by e-mailed code", () => {
     expect((await attacker.get("/account")).status).toBe(302);
   });
 
+  it("refuses two _totp cookies: a valid code for one's own address never signs in as another person", async () => {
+    const [ravi] = await t.db.select().from(users).where(eq(users.email, RAVI));
+    const raviSignIns = async () => (await t.db.select().from(auditLog).where(and(eq(auditLog.actorId, ravi.id), eq(auditLog.action, "auth.sign_in")))).length;
+    const signInsBefore = await raviSignIns();
+    const attacker = client();
+    const own = await requestCode(attacker, TOMAS);
+    const { code } = await codeFromMail(TOMAS, own.after);
+    const ownRecord = attacker.cookies.get("_totp")!;
+    await requestCode(attacker, RAVI);
+    const victimRecord = attacker.cookies.get("_totp")!;
+    // The first cookie is the victim's genuine record; the second carries the attacker's code record under the victim's address.
+    const swapped = new URLSearchParams(ownRecord);
+    swapped.set("email", RAVI);
+    attacker.cookies.set("_totp", `${victimRecord}; _totp=${swapped.toString()}`);
+    const r = await attacker.post("/sign-in/code", { intent: "verify", code });
+    expect(r.status).toBe(400);
+    expect(await r.text()).toContain("This browser holds more than one sign-in code");
+    expect((await attacker.get("/account")).status).toBe(302);
+    expect(await raviSignIns()).toBe(signInsBefore);
+
+    // The same pair in the other order, and through the link, are refused as well.
+    attacker.cookies.set("_totp", `${swapped.toString()}; _totp=${victimRecord}`);
+    expect((await attacker.post("/sign-in/code", { intent: "verify", code })).status).toBe(400);
+    expect((await attacker.get("/account")).status).toBe(302);
+    expect(await raviSignIns()).toBe(signInsBefore);
+
+    const { link } = await codeFromMail(TOMAS, own.after);
+    const viaLink = await attacker.get(link);
+    expect(viaLink.headers.get("location")).toBe("/sign-in/code");
+    expect((await attacker.get("/account")).status).toBe(302);
+    expect(await raviSignIns()).toBe(signInsBefore);
+  });
+
+  it("checks at most three codes however many arrive at once, and a used code cannot sign in again", async () => {
+    const c = client();
+    const { after } = await requestCode(c, MEI);
+    const { code } = await codeFromMail(MEI, after);
+    const wrong = otherCode(code);
+    const answers = await Promise.all(Array.from({ length: 12 }, () => c.request("/sign-in/code", { method: "POST", form: { intent: "verify", code: wrong } }).then((r) => r.text())));
+    expect(answers.filter((html) => html.includes("That code does not match")).length).toBeLessThanOrEqual(3);
+    const [row] = await t.db.select().from(signInCodes).where(eq(signInCodes.digest, createHash("sha256").update(JSON.parse(new URLSearchParams(c.cookies.get("_totp")!).get("totp")!).jwe).digest("hex")));
+    expect(row.tries).toBe(3);
+    expect((await c.post("/sign-in/code", { intent: "verify", code })).status).toBe(400);
+
+    // A fresh code signs in once; the same browser state replayed later (cookies copied before use) is refused.
+    const again = client();
+    const second = await requestCode(again, PRIYA);
+    const { code: fresh } = await codeFromMail(PRIYA, second.after);
+    const copied = new Map(again.cookies);
+    expect((await again.post("/sign-in/code", { intent: "verify", code: fresh })).status).toBe(302);
+    const replay = client();
+    for (const [k, v] of copied) replay.cookies.set(k, v);
+    const refused = await replay.post("/sign-in/code", { intent: "verify", code: fresh });
+    expect(refused.status).toBe(400);
+    expect(await refused.text()).toContain("already signed someone in");
+    expect((await replay.get("/account")).status).toBe(302);
+  });
+
+  it("limits code submissions per client address, whichever codes they carry", async () => {
+    const c = client();
+    const statuses: number[] = [];
+    for (let i = 0; i < 22; i++) {
+      if (i % 3 === 0) await requestCode(c, `limit${i}@kestrel-devices.test`);
+      statuses.push((await c.post("/sign-in/code", { intent: "verify", code: "000000" })).status);
+    }
+    expect(statuses.slice(0, 20).every((s) => s === 400)).toBe(true);
+    expect(statuses.slice(20)).toEqual([429, 429]);
+  });
+
   it("sends a new code on request, after which only the new code works; another address starts over", async () => {
     const c = client();
     const { after } = await requestCode(c, RAVI);
@@ -255,7 +325,7 @@ describe("rate limit on code requests", () => {
     expect(await refused.text()).toContain("Too many codes requested; try again at");
   });
 
-  it("uses the socket address, not X-Forwarded-For, unless TRUST_PROXY=1", async () => {
+  it("uses the socket address, not X-Forwarded-For, unless the socket's peer is a proxy TRUST_PROXY lists", async () => {
     const plain = await startAppServer({ databaseUrl: t.url, smtpPort: sink.port, mailboxDir });
     try {
       for (let i = 0; i < 5; i++) {
@@ -268,6 +338,14 @@ describe("rate limit on code requests", () => {
       expect(rows[0].ip).toBe("127.0.0.1");
     } finally {
       await plain.stop();
+    }
+    // Another proxy is listed: 127.0.0.1 is not it, so a fresh address in X-Forwarded-For does not escape its limit.
+    const elsewhere = await startAppServer({ databaseUrl: t.url, smtpPort: sink.port, mailboxDir, extraEnv: { TRUST_PROXY: "10.9.9.9, 192.0.2.0/24" } });
+    try {
+      const forged = new HttpClient(elsewhere.url, { "x-forwarded-for": "198.51.100.200" });
+      expect((await forged.post("/sign-in", { email: "listed-elsewhere@kestrel-devices.test", returnTo: "/" })).status).toBe(429);
+    } finally {
+      await elsewhere.stop();
     }
   });
 });

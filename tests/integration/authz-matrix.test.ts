@@ -1,3 +1,4 @@
+import http from "node:http";
 import { mkdtempSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -86,5 +87,21 @@ describe("authorisation matrix over app/routes.ts", () => {
       }
     }
     expect(got).toEqual(want);
+  });
+
+  // Another machine (a socket from 127.0.0.2) never reads the mailbox: 403 while it is on, 404 while it is off.
+  it.each(COVERED.filter((id) => ROUTE_ACCESS[id].access === "dev-only"))("%s: another machine is refused", async (id) => {
+    for (const [server, mailbox] of [[on, true], [off, false]] as const) {
+      for (const req of ROUTE_ACCESS[id].requests) {
+        const url = typeof req.path === "function" ? req.path(fixtures) : req.path;
+        const status = await new Promise<number>((resolve, reject) => {
+          http.get(server.url + url, { localAddress: "127.0.0.2" }, (res) => {
+            res.resume();
+            resolve(res.statusCode ?? 0);
+          }).on("error", reject);
+        });
+        expect(status, `${url}${mailbox ? "" : " (mailbox off)"}`).toBe(mailbox ? 403 : 404);
+      }
+    }
   });
 });

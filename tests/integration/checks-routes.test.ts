@@ -64,6 +64,19 @@ describe("/checks/report", () => {
     expect(((await json.json()) as CheckReportResponse).report).toBeNull();
   });
 
+  it("refuses a body over 1 MB with 413, as JSON or as a form, and says why", async () => {
+    const client = await as("tomas.okafor");
+    const notes = "x".repeat(1100 * 1024);
+    const bigJson = await fetch(server.url + "/checks/report", {
+      method: "POST", body: JSON.stringify({ kind: "new_record", material: "GaAs", notes }),
+      headers: { "content-type": "application/json", origin: server.url, cookie: client.cookieHeader() },
+    });
+    expect(bigJson.status).toBe(413);
+    expect(((await bigJson.json()) as { message: string }).message).toMatch(/at most 1\.0 MB/);
+    const bigForm = await client.post("/checks/report", { kind: "new_record", material: "GaAs", notes });
+    expect(bigForm.status).toBe(413);
+  });
+
   it("refuses a POST from another site, and sends a visitor without a session to sign in", async () => {
     const client = await as("tomas.okafor");
     const foreign = await client.post("/checks/report", { kind: "new_record", material: "GaAs" }, { origin: "https://elsewhere.example" });

@@ -51,9 +51,12 @@ function answersByWorker(server: AppServer, pathPrefix: string, from = 0): Map<s
   return counts;
 }
 
-/** The app's connections to its database, as SHOW PROCESSLIST lists them to a connection of the test's own. */
+/**
+ * The app's connections to its database, as SHOW PROCESSLIST lists them to a connection of the test's own. It signs
+ * in as the app's own runtime account: without the PROCESS privilege an account sees only its own threads.
+ */
 async function appConnections(): Promise<number> {
-  const conn = await mysql.createConnection({ uri: process.env.BANDLEDGER_TEST_BASE_URL! });
+  const conn = await mysql.createConnection({ uri: t.url });
   try {
     const [rows] = (await conn.query("SHOW FULL PROCESSLIST")) as unknown as [{ Id: number; db: string | null }[]];
     const own = (await conn.query("SELECT CONNECTION_ID() AS id")) as unknown as [{ id: number }[]];

@@ -15,7 +15,7 @@ import { readLastMail } from "../support/mailbox";
 import { HttpClient } from "../support/route-access";
 
 // The flags of every cookie the sign-in flow sets, read from the real Set-Cookie headers of the production build,
-// once behind a plain http address and once behind an https public address (TRUST_PROXY=1, as behind a TLS proxy);
+// once behind a plain http address and once behind an https public address (TRUST_PROXY=127.0.0.1, as behind a TLS proxy on the same host);
 // and the security headers of rendered pages and of API answers. tests/browser/home.test.ts already covers the
 // home page's nonce changing per request, nosniff and frame-ancestors; this file covers the rest.
 
@@ -36,8 +36,8 @@ beforeAll(async () => {
   sink = await startSink({ port: 0, dir: mailboxDir });
   const common = { databaseUrl: t.url, smtpPort: sink.port, mailboxDir };
   [plain, behindTls] = await Promise.all([
-    startAppServer({ ...common, extraEnv: { TRUST_PROXY: "1" } }),
-    startAppServer({ ...common, extraEnv: { TRUST_PROXY: "1", BANDLEDGER_PUBLIC_URL: PUBLIC_HTTPS } }),
+    startAppServer({ ...common, extraEnv: { TRUST_PROXY: "127.0.0.1" } }),
+    startAppServer({ ...common, extraEnv: { TRUST_PROXY: "127.0.0.1", BANDLEDGER_PUBLIC_URL: PUBLIC_HTTPS } }),
   ]);
   const [priya] = await t.db.select({ id: users.id }).from(users).where(eq(users.email, `priya.raman@${TEAM_DOMAIN}`));
   const g = generateToken();

@@ -4,14 +4,15 @@ import path from "node:path";
 import { and, eq, inArray, isNull, sql } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb } from "~/.server/db/client";
-import { auditLog, materials, notices, proposals, quantities, records, revisions, users } from "~/.server/db/schema";
+import { runWithPeerAddress } from "~/.server/auth/client-address";
+import { auditLog, draftStashes, materials, notices, proposals, quantities, records, revisions, users } from "~/.server/db/schema";
 import { startSink, type Sink } from "~/.server/mail/sink";
 import { loadUser, type CurrentUser } from "~/.server/permissions";
 import { decideProposal } from "~/.server/workflow/decide";
 import { isWorkflowError, type WorkflowError } from "~/.server/workflow/errors";
 import { sendDigests } from "~/.server/workflow/notices";
 import { addComment, createDraft, rebaseProposal, submitProposal, withdrawProposal } from "~/.server/workflow/proposals";
-import { restoreStash, stashPayload } from "~/.server/workflow/stash";
+import { MAX_STASHES, restoreStash, stashPayload, STASHES_PER_ADDRESS } from "~/.server/workflow/stash";
 import { readProposalPayload } from "~/domain/proposal-schemas";
 import { listReviewQueue, loadProposalPage } from "~/.server/workflow/views";
 import { loadDemo } from "../../seed-data/load";
@@ -342,8 +343,8 @@ describe("a draft posted after the session ran out", () => {
   it("is kept under a signed cookie and comes back into the draft once its author signs in again", async () => {
     const id = await createDraft(who.tomas, gapRevision(recordIds.gaasGap300, ""));
     const typed = gapRevision(recordIds.gaasGap300, "1.42247", { notes: "typed while the session ran out" });
-    const first = await stashPayload(new Request("http://bandledger.test/proposals/1/edit"), readProposalPayload(gapRevision(recordIds.gaasGap300, "1.4")), id);
-    const setCookie = await stashPayload(new Request("http://bandledger.test/proposals/1/edit", { headers: { cookie: first.split(";")[0] } }), readProposalPayload(typed), id);
+    const first = (await stashPayload(new Request("http://bandledger.test/proposals/1/edit"), readProposalPayload(gapRevision(recordIds.gaasGap300, "1.4")), id)).setCookie!;
+    const setCookie = (await stashPayload(new Request("http://bandledger.test/proposals/1/edit", { headers: { cookie: first.split(";")[0] } }), readProposalPayload(typed), id)).setCookie!;
     expect(setCookie.split(";")[0]).toBe(first.split(";")[0]);
     const cookie = setCookie.split(";")[0];
     const i = cookie.indexOf("=") + 5;
@@ -359,10 +360,32 @@ describe("a draft posted after the session ran out", () => {
 
   it("becomes a new draft of whoever signs in when it was not theirs", async () => {
     const id = await createDraft(who.tomas, gapRevision(recordIds.gaasGap300, ""));
-    const setCookie = await stashPayload(new Request("http://bandledger.test/proposals/new"), readProposalPayload(gapRevision(recordIds.gaasGap300, "1.42246")), id);
+    const setCookie = (await stashPayload(new Request("http://bandledger.test/proposals/new"), readProposalPayload(gapRevision(recordIds.gaasGap300, "1.42246")), id)).setCookie!;
     const back = await restoreStash(new Request("http://bandledger.test/", { headers: { cookie: setCookie.split(";")[0] } }), who.mei);
     expect(back.proposalId).not.toBe(id);
     const [row] = await t.db.select().from(proposals).where(eq(proposals.id, back.proposalId!));
     expect(row).toMatchObject({ authorId: who.mei.id, state: "draft", payload: expect.objectContaining({ value: "1.42246" }) });
+  });
+
+  it(`is kept at most ${STASHES_PER_ADDRESS} times per client address within the hour, and never past ${MAX_STASHES} in all`, async () => {
+    const payload = readProposalPayload(gapRevision(recordIds.gaasGap300, "1.4"));
+    const post = (address: string) => runWithPeerAddress(address, () => stashPayload(new Request("http://bandledger.test/proposals/new", { method: "POST" }), payload, null));
+    const stashed = async () => Number((await t.db.select({ n: sql<number>`COUNT(*)` }).from(draftStashes))[0].n);
+    const before = await stashed();
+    for (let i = 0; i < STASHES_PER_ADDRESS; i++) expect((await post("198.51.100.23")).kept).toBe(true);
+    expect(await post("198.51.100.23")).toEqual({ kept: false, setCookie: null });
+    expect(await stashed()).toBe(before + STASHES_PER_ADDRESS);
+    expect((await post("198.51.100.24")).kept).toBe(true);
+
+    // Fill the table to its cap from many addresses: the next anonymous post keeps nothing, whoever sends it.
+    const room = MAX_STASHES - (await stashed());
+    await t.pool.query(
+      "INSERT INTO draft_stashes (id, proposal_id, payload, ip, expires_at) SELECT SHA2(CONCAT('filler', seq), 256), NULL, '{}', CONCAT('203.0.113.', seq % 250), NOW(3) + INTERVAL 1 HOUR FROM seq_1_to_100000 LIMIT ?",
+      [room],
+    );
+    expect(await stashed()).toBe(MAX_STASHES);
+    expect((await post("192.0.2.200")).kept).toBe(false);
+    expect(await stashed()).toBe(MAX_STASHES);
+    await t.pool.query("DELETE FROM draft_stashes WHERE ip LIKE '203.0.113.%'");
   });
 });

@@ -108,10 +108,12 @@ describe("the demo registry", () => {
 describe("revisions in MariaDB", () => {
   it("are refused UPDATE and DELETE by the database itself", async () => {
     const [rev] = await t.db.select().from(revisions).limit(1);
-    expect(await databaseRefusal(t.db.update(revisions).set({ value: "9.999" }).where(eq(revisions.id, rev.id)))).toMatch(/immutable/);
-    expect(await databaseRefusal(t.db.delete(revisions).where(eq(revisions.id, rev.id)))).toMatch(/immutable/);
-    expect(await databaseRefusal(t.pool.query("UPDATE revisions SET notes = 'edited' WHERE id = ?", [rev.id]))).toMatch(/immutable/);
-    expect(await databaseRefusal(t.pool.query("DELETE FROM revisions"))).toMatch(/immutable/);
+    expect(await databaseRefusal(t.db.update(revisions).set({ value: "9.999" }).where(eq(revisions.id, rev.id)))).toMatch(/UPDATE command denied/);
+    expect(await databaseRefusal(t.db.delete(revisions).where(eq(revisions.id, rev.id)))).toMatch(/DELETE command denied/);
+    expect(await databaseRefusal(t.admin.db.update(revisions).set({ value: "9.999" }).where(eq(revisions.id, rev.id)))).toMatch(/immutable/);
+    expect(await databaseRefusal(t.admin.db.delete(revisions).where(eq(revisions.id, rev.id)))).toMatch(/immutable/);
+    expect(await databaseRefusal(t.admin.pool.query("UPDATE revisions SET notes = 'edited' WHERE id = ?", [rev.id]))).toMatch(/immutable/);
+    expect(await databaseRefusal(t.admin.pool.query("DELETE FROM revisions"))).toMatch(/immutable/);
     const [after] = await t.db.select().from(revisions).where(eq(revisions.id, rev.id));
     expect(after).toEqual(rev);
   });

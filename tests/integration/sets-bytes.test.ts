@@ -13,7 +13,7 @@ let demo: DemoServer;
 let token: string;
 let cookie: string;
 
-type Download = { status: number; bytes: Buffer; etag: string | null; cacheControl: string | null; disposition: string | null; digest: string | null };
+type Download = { status: number; bytes: Buffer; etag: string | null; cacheControl: string | null; vary: string | null; disposition: string | null; digest: string | null };
 
 // The identity bytes: fetch would otherwise ask for gzip (and decode it); the encoded forms are checked below.
 async function download(pathname: string, headers: Record<string, string> = {}): Promise<Download> {
@@ -23,6 +23,7 @@ async function download(pathname: string, headers: Record<string, string> = {}):
     bytes: Buffer.from(await r.arrayBuffer()),
     etag: r.headers.get("etag"),
     cacheControl: r.headers.get("cache-control"),
+    vary: r.headers.get("vary"),
     disposition: r.headers.get("content-disposition"),
     digest: r.headers.get("repr-digest"),
   };
@@ -60,7 +61,13 @@ describe("a frozen release downloads as the same bytes", () => {
     const verified = await verifyReleaseText(json.bytes.toString("utf8"));
     expect(verified).toMatchObject({ ok: true, sha256: meta.sha256 });
     expect(json.etag).toBe(`"${meta.sha256}"`);
-    expect(json.cacheControl).toBe("public, max-age=31536000, immutable");
+    // Members only: the member's own client keeps it for good, a shared cache never does, and the answer varies by credentials.
+    expect(json.cacheControl).toBe("private, max-age=31536000, immutable");
+    for (const download of first.values()) {
+      expect(download.cacheControl).toBe("private, max-age=31536000, immutable");
+      expect(download.vary).toMatch(/Cookie/);
+      expect(download.vary).toMatch(/Authorization/);
+    }
     expect(json.disposition).toBe('attachment; filename="hemt-baseline-r3.json"');
     expect(json.digest).toBe(`sha-256=:${createHash("sha256").update(json.bytes).digest("base64")}:`);
     const csv = first.get(PATHS[1])!;
@@ -94,7 +101,7 @@ describe("a frozen release downloads as the same bytes", () => {
 
   it("after a mariadb-dump backup and a restore", async () => {
     const file = path.join(mkdtempSync(path.join(os.tmpdir(), "bl-bytes-")), "dump.sql");
-    const env = { ...process.env, DATABASE_URL: demo.t.url };
+    const env = { ...process.env, DATABASE_URL: demo.t.url, MIGRATION_DATABASE_URL: demo.t.adminUrl };
     execFileSync("bash", ["scripts/backup.sh", "backup", file], { env, stdio: "pipe" });
     await demo.server.stop();
     await demo.t.pool.end();
@@ -150,8 +157,8 @@ describe("a frozen release in each content coding", () => {
     const r = await raw(`/api/v1/sets/hemt-baseline/releases/3/download?format=${format}`, { "accept-encoding": encoding });
     expect(r.status).toBe(200);
     expect(r.headers["content-encoding"]).toBe(encoding === "identity" ? undefined : encoding);
-    expect(r.headers.vary).toBe("Accept-Encoding");
-    expect(r.headers["cache-control"]).toBe("public, max-age=31536000, immutable");
+    expect(r.headers.vary).toBe("Cookie, Authorization, Accept-Encoding");
+    expect(r.headers["cache-control"]).toBe("private, max-age=31536000, immutable");
     expect(Number(r.headers["content-length"])).toBe(r.body.length);
     // Repr-Digest is of the representation as sent (RFC 9530), so of the encoded bytes.
     expect(r.headers["repr-digest"]).toBe(`sha-256=:${createHash("sha256").update(r.body).digest("base64")}:`);
@@ -181,7 +188,7 @@ describe("a frozen release in each content coding", () => {
     expect(notModified.status).toBe(304);
     expect(notModified.body.length).toBe(0);
     expect(notModified.headers.etag).toBe(etag);
-    expect(notModified.headers.vary).toBe("Accept-Encoding");
+    expect(notModified.headers.vary).toBe("Cookie, Authorization, Accept-Encoding");
     expect((await raw(url, { "accept-encoding": encoding, "if-none-match": `W/${etag}` })).status).toBe(304);
     const other = encoding === "identity" ? "gzip" : "identity";
     const changed = await raw(url, { "accept-encoding": other, "if-none-match": etag });

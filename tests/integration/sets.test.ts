@@ -155,12 +155,14 @@ describe("composing and freezing a set", () => {
 
   it("a frozen release cannot be changed or deleted, even by direct SQL: the database refuses", async () => {
     const [r] = await t.db.select().from(releases).limit(1);
-    expect(await databaseRefusal(t.db.update(releases).set({ sha256: "0".repeat(64) }).where(eq(releases.id, r.id)))).toMatch(/immutable/);
-    expect(await databaseRefusal(t.db.update(releases).set({ canonicalJson: "{}" }).where(eq(releases.id, r.id)))).toMatch(/immutable/);
-    expect(await databaseRefusal(t.db.delete(releases).where(eq(releases.id, r.id)))).toMatch(/immutable/);
-    expect(await databaseRefusal(t.db.update(releaseItems).set({ revisionId: 1 }).where(eq(releaseItems.releaseId, r.id)))).toMatch(/immutable/);
-    expect(await databaseRefusal(t.db.delete(releaseItems).where(eq(releaseItems.releaseId, r.id)))).toMatch(/immutable/);
-    expect(await databaseRefusal(t.pool.query("DELETE FROM releases"))).toMatch(/immutable/);
+    expect(await databaseRefusal(t.db.update(releases).set({ sha256: "0".repeat(64) }).where(eq(releases.id, r.id)))).toMatch(/UPDATE command denied/);
+    expect(await databaseRefusal(t.db.delete(releaseItems).where(eq(releaseItems.releaseId, r.id)))).toMatch(/DELETE command denied/);
+    expect(await databaseRefusal(t.admin.db.update(releases).set({ sha256: "0".repeat(64) }).where(eq(releases.id, r.id)))).toMatch(/immutable/);
+    expect(await databaseRefusal(t.admin.db.update(releases).set({ canonicalJson: "{}" }).where(eq(releases.id, r.id)))).toMatch(/immutable/);
+    expect(await databaseRefusal(t.admin.db.delete(releases).where(eq(releases.id, r.id)))).toMatch(/immutable/);
+    expect(await databaseRefusal(t.admin.db.update(releaseItems).set({ revisionId: 1 }).where(eq(releaseItems.releaseId, r.id)))).toMatch(/immutable/);
+    expect(await databaseRefusal(t.admin.db.delete(releaseItems).where(eq(releaseItems.releaseId, r.id)))).toMatch(/immutable/);
+    expect(await databaseRefusal(t.admin.pool.query("DELETE FROM releases"))).toMatch(/immutable/);
     const [still] = await t.db.select().from(releases).where(eq(releases.id, r.id));
     expect(still.sha256).toBe(r.sha256);
     expect((await verifyReleaseText(still.canonicalJson)).ok).toBe(true);

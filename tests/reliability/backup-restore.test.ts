@@ -44,7 +44,7 @@ async function stop(): Promise<void> {
 
 function npm(script: "db:backup" | "db:restore", file: string): number {
   const started = performance.now();
-  execFileSync("npm", ["run", "--silent", script, "--", file], { env: { ...process.env, DATABASE_URL: t.url }, stdio: "pipe" });
+  execFileSync("npm", ["run", "--silent", script, "--", file], { env: { ...process.env, DATABASE_URL: t.url, MIGRATION_DATABASE_URL: t.adminUrl }, stdio: "pipe" });
   return Math.round(performance.now() - started);
 }
 

@@ -4,19 +4,16 @@ import path from "node:path";
 import { drizzle } from "drizzle-orm/mysql2";
 import type { TestProject } from "vitest/node";
 import { createPool } from "~/.server/db/client";
-import { createDatabase, dropDatabase, runMigrations } from "~/.server/db/migrate";
 import * as schema from "~/.server/db/schema";
 import { startSink } from "~/.server/mail/sink";
 import { loadDemo } from "../../seed-data/load";
 import { startAppServer } from "./app-server";
-import { baseDatabaseUrl } from "./env";
+import { createTestDatabase } from "./db";
 
 // Browser tests: one production server on a free port, over a fresh demo database and its own mail sink.
 export default async function setup(project: TestProject) {
-  const base = baseDatabaseUrl();
   const name = `bandledger_test_e2e_${process.pid}`;
-  const url = await createDatabase(base, name);
-  await runMigrations(url);
+  const { url, drop } = await createTestDatabase(name);
   const pool = createPool(url, 4);
   await loadDemo(drizzle(pool, { schema, mode: "default" }));
   await pool.end();
@@ -29,7 +26,7 @@ export default async function setup(project: TestProject) {
   return async () => {
     await server.stop();
     await sink.close();
-    await dropDatabase(base, name);
+    await drop();
   };
 }
 

@@ -17,3 +17,10 @@ export function baseDatabaseUrl(): string {
   if (!running || !existsSync(passFile)) execFileSync("bash", ["scripts/db.sh", "start"], { stdio: "inherit" });
   return execFileSync("bash", ["scripts/db.sh", "url", "bandledger_test"], { encoding: "utf8" }).trim();
 }
+
+// The migration account of the same server: it creates, migrates and drops the tests' databases.
+export function migrationBaseUrl(): string {
+  if (process.env.TEST_DATABASE_URL) return process.env.TEST_MIGRATION_DATABASE_URL ?? process.env.TEST_DATABASE_URL;
+  baseDatabaseUrl();
+  return execFileSync("bash", ["scripts/db.sh", "url", "bandledger_test", "migrate"], { encoding: "utf8" }).trim();
+}

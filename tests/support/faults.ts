@@ -110,6 +110,37 @@ export function postInPieces(client: HttpClient, pathname: string, body: Buffer,
 }
 
 /**
+ * A POST over node:http with no declared length (chunked), writing `chunk` again and again until the server answers
+ * or `maxBytes` are sent: shows whether the server refuses an oversized body while it arrives.
+ */
+export function streamUntilAnswered(url: string, headers: Record<string, string>, chunk: Buffer, maxBytes: number): Promise<{ status: number | null; sentBytes: number; text: string }> {
+  return new Promise((resolve) => {
+    let sentBytes = 0;
+    let answered = false;
+    const req = http.request(url, { method: "POST", headers }, (res) => {
+      answered = true;
+      const chunks: Buffer[] = [];
+      res.on("data", (c: Buffer) => chunks.push(c));
+      res.on("end", () => {
+        resolve({ status: res.statusCode ?? null, sentBytes, text: Buffer.concat(chunks).toString("utf8") });
+        req.destroy();
+      });
+    });
+    req.on("error", () => {
+      if (!answered) resolve({ status: null, sentBytes, text: "" });
+    });
+    const pump = () => {
+      while (!answered && !req.destroyed && sentBytes < maxBytes) {
+        sentBytes += chunk.length;
+        if (!req.write(chunk)) return void req.once("drain", pump);
+      }
+      if (!answered && !req.destroyed) req.end();
+    };
+    pump();
+  });
+}
+
+/**
  * SIGKILL for the app, its primary and every worker in the same moment: no shutdown hook, no closing of a pool, as
  * when the machine loses the processes. Resolves once every one of them is gone.
  */

@@ -18,7 +18,7 @@ export class ThrowawayMariadb {
     const datadir = path.join(this.dir, "data");
     if (!existsSync(path.join(datadir, "mysql"))) {
       mkdirSync(datadir, { recursive: true });
-      execFileSync(bin("mariadb-install-db"), ["--no-defaults", `--datadir=${datadir}`, "--user=root", "--auth-root-authentication-method=normal", "--skip-test-db", "--skip-name-resolve", "--cross-bootstrap"], { stdio: "ignore" });
+      execFileSync(bin("mariadb-install-db"), ["--no-defaults", `--datadir=${datadir}`, "--user=root", "--auth-root-authentication-method=socket", "--skip-test-db", "--skip-name-resolve", "--cross-bootstrap"], { stdio: "ignore" });
     }
     this.child = spawn(bin("mariadbd"), ["--no-defaults", `--datadir=${datadir}`, `--socket=${this.socket}`, `--pid-file=${path.join(this.dir, "pid")}`, `--port=${this.port}`, "--bind-address=127.0.0.1", "--user=root", "--skip-name-resolve", "--character-set-server=utf8mb4", "--collation-server=utf8mb4_unicode_ci", "--log-bin-trust-function-creators=1", `--log-error=${path.join(this.dir, "err.log")}`], { stdio: "ignore", detached: true });
     const deadline = Date.now() + 20_000;
@@ -33,7 +33,7 @@ export class ThrowawayMariadb {
       }
     }
     execFileSync(bin("mariadb"), ["--no-defaults", "--protocol=socket", `--socket=${this.socket}`, "-uroot", "-e",
-      "CREATE DATABASE IF NOT EXISTS app; CREATE USER IF NOT EXISTS 'app'@'127.0.0.1' IDENTIFIED BY 'app-pass'; GRANT ALL ON *.* TO 'app'@'127.0.0.1'; FLUSH PRIVILEGES;"]);
+      "DROP USER IF EXISTS 'root'@'127.0.0.1', 'root'@'::1'; CREATE DATABASE IF NOT EXISTS app; CREATE USER IF NOT EXISTS 'app'@'127.0.0.1' IDENTIFIED BY 'app-pass'; GRANT ALL ON *.* TO 'app'@'127.0.0.1'; FLUSH PRIVILEGES;"]);
   }
 
   get url() {

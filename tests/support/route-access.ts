@@ -6,7 +6,7 @@ export type Access =
   | "signed-in" // any active user; others are sent to /sign-in?returnTo=…
   | "role:reader" | "role:contributor" | "role:lead" | "role:admin" // that role or a higher one; lower roles get 403
   | "api-user" // a bearer token or a session; others get 401 JSON
-  | "dev-only" // open while the local mailbox is on, 404 when it is off
+  | "dev-only" // open to this machine while the local mailbox is on (403 to another machine), 404 when it is off
   | "not-found"; // the catch-all: 404 for everyone
 
 export type Fixtures = { mailFile: string };

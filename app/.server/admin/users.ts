@@ -96,7 +96,8 @@ export async function changeRole(admin: CurrentUser, input: z.infer<typeof roleC
     if (target.role === "admin" && target.active && (await otherActiveAdmins(tx, target.id)) === 0) return { ok: false as const, errors: { row: LAST_ADMIN } };
     await tx.update(users).set({ role: input.role, version: sql`${users.version} + 1` }).where(and(eq(users.id, target.id), eq(users.version, input.version)));
     let removed: number[] = [];
-    if (target.role === "lead" && input.role !== "admin") {
+    // Assignments belong to the lead role alone: they go whenever the new role is another, admin included.
+    if (input.role !== "lead") {
       removed = (await tx.select({ familyId: familyLeads.familyId }).from(familyLeads).where(eq(familyLeads.userId, target.id))).map((r) => r.familyId);
       if (removed.length) await tx.delete(familyLeads).where(eq(familyLeads.userId, target.id));
     }

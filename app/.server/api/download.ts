@@ -5,7 +5,12 @@ import { requireUser } from "../permissions";
 import { RELEASE_ENCODINGS, servedRelease, type ReleaseEncoding, type ServedFile } from "../sets/release-cache";
 import { requireApiCaller, type ApiCaller } from "./guard";
 
-export const IMMUTABLE = "public, max-age=31536000, immutable";
+// Members only: a shared cache must never hand a release to someone who did not sign in or show a token, while
+// the member's own browser or pipeline may keep it for good (it never changes). The answer varies by credentials.
+export const IMMUTABLE = "private, max-age=31536000, immutable";
+export const VARY = "Cookie, Authorization";
+/** With an encoded form held the answer also varies by the codings the request accepts. */
+export const VARY_ENCODED = `${VARY}, Accept-Encoding`;
 
 /** A download's caller: a bearer token (counted against the API limit) or the browser session (else to sign-in). */
 export async function requireDownloadCaller(request: Request): Promise<ApiCaller> {
@@ -35,9 +40,10 @@ export function chooseEncoding(acceptEncoding: string | null, file: ServedFile):
 
 /**
  * The stored bytes of a release, exactly as frozen, as identity or as the gzip or brotli form made once when the
- * release was first read (Vary: Accept-Encoding). The identity ETag is the hash of the file (the content hash for
+ * release was first read (Vary then names Accept-Encoding too). The identity ETag is the hash of the file (the content hash for
  * JSON, the CSV's own hash for CSV); each encoded form has an ETag of its own that begins with it, and a
- * Repr-Digest of the encoded bytes. Cached for a year as immutable, 304 for a matching If-None-Match.
+ * Repr-Digest of the encoded bytes. Kept for a year as immutable by the member's own client only, 304 for a matching
+ * If-None-Match.
  */
 export async function releaseDownloadResponse(request: Request, caller: ApiCaller, slug: string, number: number, format: ReleaseFormat): Promise<Response> {
   const release = await servedRelease(slug, number);
@@ -47,10 +53,11 @@ export async function releaseDownloadResponse(request: Request, caller: ApiCalle
   const headers = new Headers({
     ETag: representation.etag,
     "Cache-Control": IMMUTABLE,
+    Vary: VARY,
     "X-Bandledger-Release-Sha256": release.sha256,
     "X-Content-Type-Options": "nosniff",
   });
-  if (RELEASE_ENCODINGS.some((e) => file[e])) headers.set("Vary", "Accept-Encoding");
+  if (RELEASE_ENCODINGS.some((e) => file[e])) headers.set("Vary", VARY_ENCODED);
   const notModified = matchesIfNoneMatch(request.headers.get("if-none-match"), representation.etag);
   if (caller.viaToken) {
     // Written before the answer goes out, in one INSERT with the other downloads of the same moment.

@@ -105,8 +105,8 @@ function buildRegistry(): OpenAPIRegistry {
         headers: {
           ETag: { description: "\"<sha256>\" as identity; \"<sha256>-<br|gzip>-<16 hex of the encoded bytes' SHA-256>\" for an encoded form", schema: { type: "string" } },
           "Content-Encoding": { description: "br or gzip when the request accepts one; absent for identity.", schema: { type: "string" } },
-          Vary: { description: "Accept-Encoding", schema: { type: "string" } },
-          "Cache-Control": { description: "public, max-age=31536000, immutable", schema: { type: "string" } },
+          "Cache-Control": { description: "private, max-age=31536000, immutable (members only: never kept by a shared cache)", schema: { type: "string" } },
+          Vary: { description: "Cookie, Authorization, Accept-Encoding", schema: { type: "string" } },
           "Repr-Digest": { description: "sha-256 of the bytes served, encoded ones for an encoded form (RFC 9530).", schema: { type: "string" } },
           "X-Bandledger-Release-Sha256": { description: "The release's content hash, for both formats.", schema: { type: "string" } },
         },

@@ -1,6 +1,11 @@
 import { z } from "zod";
+import { isSolveRefused } from "../checks/solve-guard";
 import { isSetError } from "../sets/errors";
+import { readLimitedBody, StorageError } from "../storage";
 import { apiError } from "../tokens";
+
+// Far above any request of ours (a check's inputs, a set's members), read as it arrives and refused past it.
+export const MAX_JSON_BODY_BYTES = 256 * 1024;
 
 export { apiError };
 
@@ -23,10 +28,18 @@ export function parseQuery<S extends z.ZodType>(schema: S, request: Request): z.
 export async function parseJsonBody<S extends z.ZodType>(schema: S, request: Request): Promise<z.infer<S>> {
   const type = request.headers.get("content-type") ?? "";
   if (!/^application\/json\b/i.test(type)) throw apiError(400, "invalid_content_type", "Send the body as JSON with Content-Type: application/json.", null);
+  let bytes: Buffer<ArrayBuffer>;
+  try {
+    bytes = await readLimitedBody(request, MAX_JSON_BODY_BYTES);
+  } catch (e) {
+    // The rest of the body is never read, so the connection cannot carry another request: close it.
+    if (e instanceof StorageError) throw apiError(413, "too_large", `The body is too large: at most ${MAX_JSON_BODY_BYTES / 1024} kB of JSON is taken.`, null, { Connection: "close" });
+    throw e;
+  }
   let text: string;
   try {
     // JSON is UTF-8 (RFC 8259 §8.1); request.json() would turn broken bytes into U+FFFD without a word.
-    text = new TextDecoder("utf-8", { fatal: true }).decode(await request.arrayBuffer());
+    text = new TextDecoder("utf-8", { fatal: true }).decode(bytes);
   } catch {
     throw apiError(400, "invalid_json", "The body is not UTF-8, so it is not valid JSON.", null);
   }
@@ -62,6 +75,10 @@ export async function runApi(handler: () => Promise<Response>): Promise<Response
   } catch (e) {
     if (e instanceof Response) return e;
     if (isSetError(e)) return apiError(e.status, e.code, e.message, e.field);
+    if (isSolveRefused(e)) {
+      const { status, message, retryAfterSeconds } = e.refusal;
+      return apiError(status, status === 429 ? "rate_limited" : "busy", message, null, { "Retry-After": String(retryAfterSeconds), "Cache-Control": "no-store" });
+    }
     console.error(e);
     return apiError(500, "internal_error", "The server hit an unexpected error; it has been logged.", null);
   }

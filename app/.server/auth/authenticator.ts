@@ -7,7 +7,9 @@ import { env } from "../env";
 import { sendMail } from "../mail/send";
 import { signInCodeMail } from "../mail/templates";
 import { commitSession, getSession } from "../session";
+import { markCodeUsed } from "./codes";
 import { safeReturnTo } from "./return-to";
+import { codeDigest, readTotpCookie } from "./totp-cookie";
 import { CODE_PERIOD_SECONDS, createTotpStrategy, SIGN_IN_PATHS } from "./totp-strategy";
 import { findActiveUserByEmail, markSignedIn } from "./users";
 
@@ -38,6 +40,10 @@ async function verify({ email, request }: TOTPVerifyParams): Promise<never> {
   const session = await getSession(request);
   const pending = session.get("pendingSignIn");
   if (!pending || pending.email !== email.toLowerCase()) throw new Error("code-missing");
+  // The strategy was handed one _totp cookie; it must be the code this session asked for, and it works once.
+  const jwe = readTotpCookie(request.headers.get("cookie"))?.jwe;
+  if (!jwe || codeDigest(jwe) !== pending.codeDigest) throw new Error("code-missing");
+  if (!(await markCodeUsed(pending.codeDigest, pending.email))) throw new Error("code-used");
   const user = await findActiveUserByEmail(email);
   if (!user) throw new Error("code-wrong");
   await markSignedIn(user.id);

@@ -7,6 +7,9 @@ export const SIGN_IN_MESSAGES = {
   "code-expired": "That code has expired; codes last 10 minutes. Ask for a new one below.",
   "code-void": "That code is void after three wrong tries. Ask for a new one below.",
   "code-missing": "This browser has no code waiting. Ask for a code first.",
+  "code-used": "That code has already signed someone in; each code works once. Ask for a new one below.",
+  "code-duplicate": "This browser holds more than one sign-in code, so none of them is accepted. Ask for a new code below.",
+  "code-too-many-tries": "Too many codes tried from this network in the last 15 minutes. Wait a few minutes and try again.",
   "link-other-browser": "This sign-in link works only in the browser where the code was requested. Type the six-digit code there, or ask for a new code here.",
 } as const;
 

@@ -25,14 +25,35 @@ function parseValue(raw: string): TotpCookie {
   return out;
 }
 
-export function readTotpCookie(cookieHeader: string | null): TotpCookie | null {
-  if (!cookieHeader) return null;
+export type TotpCookieValue = { raw: string; cookie: TotpCookie };
+
+// Every _totp value in a Cookie header, in order: a browser holds one, so more than one is refused by the caller.
+export function readTotpCookies(cookieHeader: string | null): TotpCookieValue[] {
+  if (!cookieHeader) return [];
+  const found: TotpCookieValue[] = [];
   for (const part of cookieHeader.split(";")) {
     const i = part.indexOf("=");
     if (i < 0) continue;
-    if (part.slice(0, i).trim() === TOTP_COOKIE) return parseValue(part.slice(i + 1).trim());
+    if (part.slice(0, i).trim() !== TOTP_COOKIE) continue;
+    const raw = part.slice(i + 1).trim();
+    found.push({ raw, cookie: parseValue(raw) });
   }
-  return null;
+  return found;
+}
+
+/** The one _totp cookie of a request; null when there is none or more than one. */
+export function readTotpCookie(cookieHeader: string | null): TotpCookie | null {
+  const all = readTotpCookies(cookieHeader);
+  return all.length === 1 ? all[0].cookie : null;
+}
+
+/** The Cookie header with every _totp value replaced by exactly the one that was checked. */
+export function withOnlyTotpCookie(cookieHeader: string | null, raw: string): string {
+  const others = (cookieHeader ?? "")
+    .split(";")
+    .map((p) => p.trim())
+    .filter((p) => p && p.slice(0, Math.max(0, p.indexOf("="))).trim() !== TOTP_COOKIE);
+  return [...others, `${TOTP_COOKIE}=${raw}`].join("; ");
 }
 
 export function totpCookieFromResponse(response: Response): TotpCookie | null {

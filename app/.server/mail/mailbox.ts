@@ -1,6 +1,25 @@
 import { existsSync, readdirSync, readFileSync, statSync } from "node:fs";
 import path from "node:path";
 import { simpleParser } from "mailparser";
+import { data } from "react-router";
+import { peerAddress } from "../auth/client-address";
+import { env } from "../env";
+
+// The machine's own browser connects from exactly these; 127.0.0.2 and the rest of 127/8 count as elsewhere.
+const THIS_MACHINE = new Set(["127.0.0.1", "::1", "::ffff:127.0.0.1"]);
+
+/**
+ * The guard of the mailbox pages: absent (404) while the mailbox is off, and 403 to any socket that is not this
+ * machine's own, whatever X-Forwarded-For or TRUST_PROXY say, since every sign-in code of the team is in it.
+ */
+export function requireLocalMailbox(): { dir: string } {
+  if (!env().mailboxEnabled) throw data({ message: "Not found" }, { status: 404 });
+  const peer = peerAddress();
+  if (!peer || !THIS_MACHINE.has(peer)) {
+    throw data({ message: "The local mailbox opens only in a browser on the machine that runs Bandledger (127.0.0.1 or ::1): it holds every sign-in code." }, { status: 403, statusText: "Forbidden" });
+  }
+  return { dir: env().mailboxDir };
+}
 
 export type MailboxEntry = { file: string; receivedAt: Date; to: string; from: string; subject: string };
 export type MailboxMessage = MailboxEntry & { text: string; html: string | null };

@@ -139,7 +139,7 @@ export async function loadBatch(actor: Actor & { leadFamilyIds: number[] }, batc
     .where(eq(proposals.batchId, batchId))
     .orderBy(asc(proposals.id));
   const list = rows.map(({ proposedValue, proposedUnit, ...r }) => ({ ...r, proposed: withUnit(proposedValue, proposedUnit) }));
-  const mayLead = actor.role === "admin" || list.some((p) => actor.leadFamilyIds.includes(p.familyId));
+  const mayLead = actor.role === "admin" || (actor.role === "lead" && list.some((p) => actor.leadFamilyIds.includes(p.familyId)));
   if (batch.batch.authorId !== actor.id && !mayLead) throw new WorkflowError("not_found", "There is no such upload.");
   const [file] = await db().select().from(attachments).where(and(eq(attachments.batchId, batchId), eq(attachments.sha256, batch.batch.sha256)));
   return {

@@ -43,9 +43,13 @@ export async function proposalFormAction(request: Request, draftId: number | nul
   const proposalId = draftId ?? (Number.isInteger(postedId) && postedId > 0 ? postedId : null);
   const user = await getOptionalUser(request);
   if (!user) {
-    const setCookie = await stashPayload(request, payload, proposalId);
+    const stash = await stashPayload(request, payload, proposalId);
+    if (!stash.kept) {
+      const message = "Your session has ended, and this network has left too many unsigned forms for one more to be kept. Sign in again in another tab, then save this form again: it is still on this page.";
+      return data(result({ intent, proposalId, payload, sessionExpired: true, message }), { status: 429 });
+    }
     const signIn = `/sign-in?returnTo=${encodeURIComponent("/proposals/restore")}`;
-    const headers = { "Set-Cookie": setCookie };
+    const headers = { "Set-Cookie": stash.setCookie };
     if (intent === "autosave") return data(result({ intent, proposalId, sessionExpired: true, message: "Your session has ended. What you typed is kept: sign in again and it comes back." }), { status: 401, headers });
     throw redirect(signIn, { headers });
   }

@@ -1,7 +1,8 @@
 import { createHash, randomBytes } from "node:crypto";
-import { and, eq, gt, lt, sql } from "drizzle-orm";
+import { and, count, eq, gt, lt, sql } from "drizzle-orm";
 import { createCookie } from "react-router";
 import { readProposalPayload, type ProposalPayload } from "~/domain/proposal-schemas";
+import { clientAddress } from "../auth/client-address";
 import { db } from "../db/client";
 import { draftStashes, proposals } from "../db/schema";
 import { env } from "../env";
@@ -27,12 +28,18 @@ function stashCookie() {
 
 const digest = (key: string) => createHash("sha256").update(key).digest("hex");
 
+// Anonymous writes are bounded: so many kept forms per client address within their hour, so many in all.
+export const STASHES_PER_ADDRESS = 20;
+export const MAX_STASHES = 10_000;
+
+export type StashResult = { kept: true; setCookie: string } | { kept: false; setCookie: null };
+
 /**
  * Keeps a proposal form posted after its session ran out: the payload goes to the database under a random key,
  * and the browser gets that key in a short-lived signed cookie (a browser that already holds one keeps its key,
- * so repeated autosaves overwrite one stash). Returns the Set-Cookie header.
+ * so repeated autosaves overwrite one stash). A new stash is refused past the per-address limit or the table's cap.
  */
-export async function stashPayload(request: Request, payload: ProposalPayload, proposalId: number | null): Promise<string> {
+export async function stashPayload(request: Request, payload: ProposalPayload, proposalId: number | null): Promise<StashResult> {
   let kept = payload;
   if (JSON.stringify(kept).length > MAX_STASH_CHARS) kept = readProposalPayload({ ...payload, source: { ...payload.source, bibtex: payload.source.bibtex.slice(0, 20_000) }, notes: payload.notes.slice(0, 4_000) });
   const held = await stashCookie().parse(request.headers.get("Cookie"));
@@ -41,12 +48,23 @@ export async function stashPayload(request: Request, payload: ProposalPayload, p
       .update(draftStashes)
       .set({ payload: kept, proposalId, expiresAt: sql`NOW(3) + INTERVAL ${STASH_MINUTES} MINUTE` })
       .where(and(eq(draftStashes.id, digest(held)), gt(draftStashes.expiresAt, sql`NOW(3)`)));
-    if (affectedRows(updated) > 0) return stashCookie().serialize(held);
+    if (affectedRows(updated) > 0) return { kept: true, setCookie: await stashCookie().serialize(held) };
   }
+  const ip = clientAddress(request);
   const key = randomBytes(32).toString("base64url");
   await db().delete(draftStashes).where(lt(draftStashes.expiresAt, sql`NOW(3)`));
-  await db().insert(draftStashes).values({ id: digest(key), proposalId, payload: kept, expiresAt: sql`NOW(3) + INTERVAL ${STASH_MINUTES} MINUTE` });
-  return stashCookie().serialize(key);
+  // Written first, then counted with the others: two posts racing for the last place cannot both keep theirs.
+  await db().insert(draftStashes).values({ id: digest(key), proposalId, payload: kept, ip, expiresAt: sql`NOW(3) + INTERVAL ${STASH_MINUTES} MINUTE` });
+  const live = gt(draftStashes.expiresAt, sql`NOW(3)`);
+  const [[mine], [all]] = await Promise.all([
+    db().select({ n: count() }).from(draftStashes).where(and(eq(draftStashes.ip, ip), live)),
+    db().select({ n: count() }).from(draftStashes).where(live),
+  ]);
+  if (Number(mine.n) > STASHES_PER_ADDRESS || Number(all.n) > MAX_STASHES) {
+    await db().delete(draftStashes).where(eq(draftStashes.id, digest(key)));
+    return { kept: false, setCookie: null };
+  }
+  return { kept: true, setCookie: await stashCookie().serialize(key) };
 }
 
 /**

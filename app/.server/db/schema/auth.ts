@@ -68,6 +68,17 @@ export const signInRequests = mysqlTable("sign_in_requests", {
   at: datetime({ fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
 }, (t) => [index("sign_in_requests_email").on(t.email, t.at), index("sign_in_requests_ip").on(t.ip, t.at)]);
 
+// One row per code issued: the server's own record of whom it was sent to, how many tries it has had and
+// whether it has signed someone in. The strategy's _totp cookie is unsigned; this row is what we trust.
+export const signInCodes = mysqlTable("sign_in_codes", {
+  digest: varchar({ length: 64 }).notNull().primaryKey(),
+  email: varchar({ length: 254 }).notNull(),
+  tries: int().notNull().default(0),
+  requestedAt: datetime("requested_at", { fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
+  expiresAt: datetime("expires_at", { fsp: 3 }).notNull(),
+  usedAt: datetime("used_at", { fsp: 3 }),
+}, (t) => [index("sign_in_codes_expires").on(t.expiresAt)]);
+
 // Generic fixed-window counters (API rate limits and the like).
 export const rateCounters = mysqlTable("rate_counters", {
   bucket: varchar({ length: 160 }).notNull().primaryKey(),

@@ -78,6 +78,8 @@ export const draftStashes = mysqlTable("draft_stashes", {
   id: varchar({ length: 64 }).primaryKey(),
   proposalId: int("proposal_id"),
   payload: json().$type<Record<string, unknown>>().notNull(),
+  // The client address that posted it: anonymous writes are limited per address.
+  ip: varchar({ length: 64 }).notNull().default(""),
   createdAt: now(),
   expiresAt: datetime("expires_at", { fsp: 3 }).notNull(),
-}, (t) => [index("draft_stashes_expires").on(t.expiresAt)]);
+}, (t) => [index("draft_stashes_expires").on(t.expiresAt), index("draft_stashes_ip").on(t.ip, t.expiresAt)]);
