@@ -1,7 +1,7 @@
 import type { Route } from "./+types/registry";
 import { db } from "~/.server/db/client";
 import { requireUser } from "~/.server/permissions";
-import { listRegistry, registryFilterOptions } from "~/.server/registry/queries";
+import { listRegistry, registryFilterOptions } from "~/.server/registry/listing";
 import { Pager } from "~/components/registry/pager";
 import { RegistryFilters } from "~/components/registry/registry-filters";
 import { RegistryTable } from "~/components/registry/registry-table";

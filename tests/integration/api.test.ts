@@ -295,6 +295,23 @@ describe("POST /api/v1/checks/nfe", () => {
     expect(r.verdict).toBe("none");
   });
 
+  it("says converged and how many plane waves; a basis stopped by the cap is converged: false with a note", async () => {
+    const ordinary = parse(nfeCheckResultSchema, await nfe({ periodAngstrom: 5.65325, coefficients: [{ n: 1, valueEv: 0.1 }] }));
+    expect(ordinary.centralEquation.converged).toBe(true);
+    expect(ordinary.centralEquation.planeWaves % 2).toBe(1);
+    // Strong coefficients on a long period at a high gap: the 201-wave cap comes before convergence.
+    const capped = parse(nfeCheckResultSchema, await nfe({
+      periodAngstrom: 100, mass: 10, gap: 19, statedGapEv: 1, coefficients: [{ n: 1, valueEv: 10 }, { n: 2, valueEv: -10 }, { n: 3, valueEv: 10 }],
+    }));
+    expect(capped.centralEquation).toMatchObject({ converged: false, planeWaves: 201 });
+    expect(capped.notes.join(" ")).toMatch(/did not converge/);
+  });
+
+  it("answers 422 at the field to a period or a mass too small for double precision", async () => {
+    expectError(await nfe({ periodAngstrom: 1e-6, coefficients: [{ n: 1, valueEv: 0.5 }] }), 422, "invalid_physics_input", "periodAngstrom");
+    expectError(await nfe({ periodAngstrom: 2, mass: 1e-5, coefficients: [{ n: 1, valueEv: 0.5 }] }), 422, "invalid_physics_input", "mass");
+  });
+
   it("answers 400 to a malformed body and 422 to a coefficient given twice", async () => {
     expectError(await nfe({ coefficients: [{ n: 1, valueEv: 0.1 }] }), 400, "invalid_request", "periodAngstrom");
     expectError(await nfe({ periodAngstrom: 5.65, coefficients: [] }), 400, "invalid_request", "coefficients");

@@ -92,7 +92,7 @@ describe("/checks/nfe and the record page without JavaScript", () => {
   it("renders the verdict of the query in the page (U_1 = 0.1 eV, stated 0.2 eV passes)", async () => {
     const html = await (await (await as("priya.raman")).get("/checks/nfe?period=5.65325&unit=angstrom&n=1&u=0.1&stated=0.2")).text();
     expect(html).toContain('data-nfe-result="pass"');
-    expect(html).toContain("central equation (11 plane waves)");
+    expect(html).toContain("central equation (13 plane waves)");
   });
 
   it("keeps a wrong input in its field with the message beside it", async () => {

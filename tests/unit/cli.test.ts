@@ -70,14 +70,26 @@ describe.concurrent("bandledger, the real command", { timeout: 30_000 }, () => {
     expect(out.gap).toBe(1);
     expect(out.verdict).toBe("none");
     const central = out.centralEquation as Record<string, unknown>;
-    expect(Object.keys(central)).toEqual(["gapEv", "lowerEv", "upperEv", "planeWaves"]);
+    expect(Object.keys(central)).toEqual(["gapEv", "lowerEv", "upperEv", "planeWaves", "converged"]);
     expect(Number.isInteger(central.planeWaves)).toBe(true);
+    expect(central.converged).toBe(true);
     for (const key of ["gapEv", "lowerEv", "upperEv"]) expect(significantDigits(central[key] as string)).toBeGreaterThanOrEqual(10);
     // Table 20.1 prints 8 decimals; the edges are converged to 1e-9 eV, i.e. 1e-9/ε1 in these units.
     expectPrinted(Number(central.lowerEv) / EPSILON_PI_OVER_A, "-5.79008060", 1e-9);
     expectPrinted(Number(central.upperEv) / EPSILON_PI_OVER_A, "1.85818754", 1e-9);
     // First order: 2|U| = 10 ε(π/a), ten times the published 1.176593107 eV.
     expectDecimal((out.firstOrder as Record<string, unknown>).gapEv, "11.76593107", 5e-8);
+  });
+
+  it("nfe: a basis that hits the plane-wave cap says converged: false and exits 4, the numbers still printed", async () => {
+    // U_1 = 1e6 eV at a = 5.65325 Å is q ≈ 8.5e5 in Mathieu's terms: far beyond what 201 plane waves resolve
+    // (U_10 makes the basis grow ten plane waves a side per step, so the cap comes in nine steps).
+    const run = await bandledger("nfe", "--period", "5.65325", "--coefficient", "1:1000000", "--coefficient", "10:1", "--stated", "1", "--json");
+    expect(run.code).toBe(4);
+    const central = JSON.parse(run.stdout).centralEquation as Record<string, unknown>;
+    expect(central.converged).toBe(false);
+    expect(central.planeWaves).toBe(201);
+    expect(run.stderr).toMatch(/did not converge/);
   });
 
   it("calc varshni: GaAs Γ at 300 K is 1.4224821 eV [Var67] with [V01] (calc)", async () => {
@@ -162,6 +174,22 @@ describe("bandledger, its dispatcher in process", () => {
     expect(run.stdout).toMatch(/verdict\s+pass/);
   });
 
+  it("nfe: a table run that does not converge says so and exits 4", async () => {
+    const run = await inProcess("nfe", "--period", "5.65325", "--coefficient", "1:1000000", "--coefficient", "10:1");
+    expect(run.code).toBe(4);
+    expect(run.stdout).toMatch(/plane waves\s+201\s+\(not converged\)/);
+  });
+
+  it("nfe: a period or a mass too small for double precision is exit 2 naming the option", async () => {
+    const period = await inProcess("nfe", "--period", "0.000001", "--coefficient", "1:0.5", "--json");
+    expect(period.code).toBe(2);
+    expect(period.stdout).toBe("");
+    expect(period.stderr).toMatch(/^bandledger nfe: --period: the period 0\.000001 Å is too small.*at least 0\.0123 Å$/m);
+    const mass = await inProcess("nfe", "--period", "5.65325", "--coefficient", "1:0.5", "--mass", "0.0000001");
+    expect(mass.code).toBe(2);
+    expect(mass.stderr).toMatch(/--mass: the mass 1e-7 m0 is too small/);
+  });
+
   it("prints usage with --help, for each command too, and exits 0", async () => {
     for (const args of [["--help"], ["nfe", "--help"], ["calc", "--help"], ["calc", "bowing", "--help"], ["help"]]) {
       const run = await inProcess(...args);
@@ -184,6 +212,13 @@ describe("bandledger, its dispatcher in process", () => {
     [["nfe", "--period", "5", "--coefficient", "1:0.5", "--period-unit", "mile"], /--period-unit/],
     [["nfe", "--period", "5", "--coefficient", "1:0.5", "--stated"], /--stated/],
     [["nfe", "--period", "5", "--coefficient", "1:0.5", "--frob", "1"], /--frob/],
+    [["nfe", "--period", "5", "--period", "6", "--coefficient", "1:0.5"], /--period is given twice/],
+    [["nfe", "--period=5", "--coefficient", "1:0.5", "--period=6"], /--period is given twice/],
+    [["nfe", "--period", "5", "--coefficient", "1:0.5", "--stated", "1", "--stated", "-1"], /--stated is given twice/],
+    [["nfe", "--period", "5", "--coefficient", "1:0.5", "--gap", "1", "--gap", "2"], /--gap is given twice/],
+    [["calc", "bowing", "--eg-a", "3.099", "--eg-b", "1.519", "--c0", "-0.127", "--c0", "-0.2", "--x", "0.3"], /--c0 is given twice/],
+    [["pull", "hemt-baseline@3", "--out", "a.json", "--out", "b.json"], /--out is given twice/],
+    [["verify", "release.json", "--sha256", "ab", "--sha256", "cd"], /--sha256 is given twice/],
     [["calc", "varshni", "--eg0", "1.519", "--alpha", "0.5405", "--beta", "204"], /--temperature is required/],
     [["calc", "bowing", "--eg-a", "3.099", "--eg-b", "1.519", "--c0", "-0.127", "--x", "1.5"], /--x must be at most 1/],
     [["calc", "kane", "--ep", "28.8", "--f", "-1.94", "--eg", "zero", "--delta", "0.341"], /--eg must be a number/],

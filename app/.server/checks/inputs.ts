@@ -4,7 +4,7 @@ import { db } from "../db/client";
 import { materials, quantities } from "../db/schema";
 import { definitionOf } from "../registry/catalogue";
 import type { Executor } from "../registry/executor";
-import { currentValuesOfMaterial } from "../registry/queries";
+import { currentValuesOfMaterial } from "../registry/material-page";
 
 export type MaterialRow = CheckMaterial & { id: number; familyId: number; endMemberAId: number | null; endMemberBId: number | null; formula: string; compositionVariable: string | null };
 

@@ -3,10 +3,11 @@ import { Form, useFetcher, useNavigation, useSubmit } from "react-router";
 import { FieldError, FormError, invalidProps } from "~/components/field-error";
 import {
   payloadToFormData, SOURCE_KIND_KEYS, SOURCE_KIND_LABELS, validateProposal, type ProposalCatalogue, type ProposalFieldErrors, type ProposalKind,
-  type ProposalPayload, type RevisionCardData,
+  type ProposalPayload,
 } from "~/domain/proposal-schemas";
 import { VALLEY_KEYS, VALLEY_LABELS } from "~/domain/quantities";
 import { METHOD_KEYS, METHOD_LABELS } from "~/domain/registry-schemas";
+import type { RevisionView } from "~/domain/revision-view";
 import { convertToCanonical, displayUnit } from "~/domain/units";
 import { LiveCheck } from "~/components/checks";
 import { RevisionCard } from "./revision-card";
@@ -19,7 +20,7 @@ export type FormRecordInfo = {
   quantityName: string;
   conditions: string;
   unit: string;
-  current: RevisionCardData | null;
+  current: RevisionView | null;
 };
 
 /** What the autosave and submit actions answer (the shape of proposalFormAction's data). */

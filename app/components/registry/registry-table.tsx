@@ -1,6 +1,6 @@
-import { createColumnHelper, flexRender, rowSortingFeature, tableFeatures, useTable, type SortingState } from "@tanstack/react-table";
-import { Link } from "react-router";
-import type { RegistryRow } from "~/.server/registry/queries";
+import { createColumnHelper, rowSortingFeature, tableFeatures, useTable, type SortingState } from "@tanstack/react-table";
+import type { RegistryRow } from "~/.server/registry/listing";
+import { SortableTable } from "~/components/sortable-table";
 import { normalisedDecimalKey } from "~/domain/exact-decimal";
 import { REGISTRY_SORTS, registryViewSearch, type RegistrySort, type RegistryView } from "~/domain/registry-schemas";
 import { formatDay, methodLabel, temperatureLabel, UncertaintyText, valleyLabel, ValueWithUnit } from "./format";
@@ -74,49 +74,11 @@ export function RegistryTable({ rows, view }: { rows: RegistryRow[]; view: Regis
   const sorting: SortingState = [{ id: view.sort, desc: view.dir === "desc" }];
   const table = useTable({ features, columns, data: rows, state: { sorting }, manualSorting: true, getRowId: (r) => String(r.recordId) });
   return (
-    <div className="card overflow-x-auto">
-      <table className="w-full border-collapse text-sm [&_td]:px-3 [&_td]:py-2 [&_td]:align-top">
-        <caption className="sr-only">Current values of the records that match the filters, sorted by {view.sort} ({view.dir === "desc" ? "descending" : "ascending"})</caption>
-        <thead>
-          {table.getHeaderGroups().map((group) => (
-            <tr key={group.id} className="border-b border-rule bg-paper text-left">
-              {group.headers.map((header) => {
-                const id = header.column.id;
-                const sorted = header.column.getIsSorted();
-                const canSort = SORTABLE.has(id);
-                const nextDir = sorted === "asc" ? "desc" : "asc";
-                return (
-                  <th key={header.id} scope="col" className="px-3 py-2 font-semibold" aria-sort={sorted ? (sorted === "asc" ? "ascending" : "descending") : undefined}>
-                    {canSort ? (
-                      <Link
-                        to={{ search: registryViewSearch(view, { sort: id as RegistrySort, dir: sorted ? nextDir : "asc", page: 1 }) }}
-                        className="inline-flex items-center gap-1 text-ink no-underline hover:underline"
-                        aria-label={`Sort by ${String(header.column.columnDef.header).toLowerCase()}${sorted ? `, now ${sorted === "asc" ? "ascending" : "descending"}` : ""}`}
-                      >
-                        <table.FlexRender header={header} />
-                        <span aria-hidden="true" className="text-xs text-copper">{sorted === "asc" ? "▲" : sorted === "desc" ? "▼" : "↕"}</span>
-                      </Link>
-                    ) : (
-                      <table.FlexRender header={header} />
-                    )}
-                  </th>
-                );
-              })}
-            </tr>
-          ))}
-        </thead>
-        <tbody>
-          {table.getRowModel().rows.map((row) => (
-            <tr key={row.id} className="border-b border-rule last:border-b-0">
-              {row.getAllCells().map((cell) => (
-                <td key={cell.id}>
-                  {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                </td>
-              ))}
-            </tr>
-          ))}
-        </tbody>
-      </table>
-    </div>
+    <SortableTable
+      table={table}
+      sorting={sorting}
+      caption={`Current values of the records that match the filters, sorted by ${view.sort} (${view.dir === "desc" ? "descending" : "ascending"})`}
+      sortTo={(id, dir) => (SORTABLE.has(id) ? { search: registryViewSearch(view, { sort: id as RegistrySort, dir, page: 1 }) } : null)}
+    />
   );
 }

@@ -5,3 +5,4 @@ export * from "./varshni";
 export * from "./alloys";
 export * from "./kane";
 export { symmetricEigenvalues } from "./symmetric-eigenvalues";
+export { PhysicsInputError } from "./validate";

@@ -1,0 +1,78 @@
+import { flexRender, type ReactTable, type RowData, type SortingState, type TableFeatures } from "@tanstack/react-table";
+import { Link, type To } from "react-router";
+
+export type SortDirection = "asc" | "desc";
+
+/**
+ * The frame of a table sorted by its headings: each sortable heading links to the same view sorted by it (ascending
+ * first, then the other way), marks its direction with aria-sort and an arrow, and the rows render their cells.
+ * The registry and the review queue share it; each brings its own columns and its own addresses.
+ */
+export function SortableTable<TFeatures extends TableFeatures, TData extends RowData>({
+  table,
+  sorting,
+  caption,
+  sortTo,
+  preventScrollReset = false,
+  rowClassName = "",
+  testId,
+}: {
+  table: ReactTable<TFeatures, TData>;
+  /** The order the rows are in (sorted on the server or by the table), which the headings show. */
+  sorting: SortingState;
+  caption: string;
+  /** The address of the view sorted by this column in this direction; null for a column that does not sort. */
+  sortTo: (columnId: string, direction: SortDirection) => To | null;
+  preventScrollReset?: boolean;
+  rowClassName?: string;
+  testId?: string;
+}) {
+  return (
+    <div className="card overflow-x-auto">
+      <table className="w-full border-collapse text-sm" data-testid={testId}>
+        <caption className="sr-only">{caption}</caption>
+        <thead>
+          {table.getHeaderGroups().map((group) => (
+            <tr key={group.id} className="border-b border-rule bg-paper text-left">
+              {group.headers.map((header) => {
+                const by = sorting.find((s) => s.id === header.column.id);
+                const sorted = by ? (by.desc ? "desc" : "asc") : false;
+                const to = sortTo(header.column.id, sorted === "asc" ? "desc" : "asc");
+                const name = String(header.column.columnDef.header).toLowerCase();
+                return (
+                  <th key={header.id} scope="col" className="px-3 py-2 font-semibold" aria-sort={sorted ? (sorted === "asc" ? "ascending" : "descending") : undefined}>
+                    {to !== null ? (
+                      <Link
+                        to={to}
+                        preventScrollReset={preventScrollReset}
+                        className="inline-flex items-center gap-1 text-ink no-underline hover:underline"
+                        aria-label={`Sort by ${name}${sorted ? `, now ${sorted === "asc" ? "ascending" : "descending"}` : ""}`}
+                      >
+                        <table.FlexRender header={header} />
+                        <span aria-hidden="true" className="text-xs text-copper">{sorted === "asc" ? "▲" : sorted === "desc" ? "▼" : "↕"}</span>
+                      </Link>
+                    ) : (
+                      <table.FlexRender header={header} />
+                    )}
+                  </th>
+                );
+              })}
+            </tr>
+          ))}
+        </thead>
+        <tbody>
+          {table.getRowModel().rows.map((row) => (
+            <tr key={row.id} className={`border-b border-rule last:border-b-0 ${rowClassName}`.trim()}>
+              {row.getAllCells().map((cell) => (
+                // flexRender rather than <table.FlexRender>: one component fewer per cell on a page of 200 rows.
+                <td key={cell.id} className="px-3 py-2 align-top">
+                  {flexRender(cell.column.columnDef.cell, cell.getContext())}
+                </td>
+              ))}
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
