@@ -1,4 +1,4 @@
-import { existsSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
+import { existsSync, linkSync, mkdirSync, readFileSync, unlinkSync, writeFileSync } from "node:fs";
 import { randomBytes } from "node:crypto";
 import { isIP } from "node:net";
 import path from "node:path";
@@ -65,13 +65,22 @@ export type Env = z.infer<typeof schema> & {
   mailboxEnabled: boolean;
 };
 
+// Several app processes may start at once on a fresh data folder: the secret is written aside and linked into
+// place, which fails for all but the first, and every process then reads the one that won.
 function readOrCreateSecret(dataDir: string, file: string): string {
   const p = path.join(dataDir, file);
   if (existsSync(p)) return readFileSync(p, "utf8").trim();
   mkdirSync(dataDir, { recursive: true });
-  const secret = randomBytes(32).toString("hex");
-  writeFileSync(p, secret + "\n", { mode: 0o600 });
-  return secret;
+  const aside = `${p}.${process.pid}.${randomBytes(4).toString("hex")}`;
+  writeFileSync(aside, randomBytes(32).toString("hex") + "\n", { mode: 0o600, flag: "wx" });
+  try {
+    linkSync(aside, p);
+  } catch (e) {
+    if ((e as NodeJS.ErrnoException).code !== "EEXIST") throw e;
+  } finally {
+    unlinkSync(aside);
+  }
+  return readFileSync(p, "utf8").trim();
 }
 
 function embeddedDatabaseUrl(dataDir: string, port: number, name: string, account: "runtime" | "migrate"): string {

@@ -1,3 +1,4 @@
+import type { ReactNode } from "react";
 import { flexRender, type ReactTable, type RowData, type SortingState, type TableFeatures } from "@tanstack/react-table";
 import { Link, type To } from "react-router";
 
@@ -6,7 +7,8 @@ export type SortDirection = "asc" | "desc";
 /**
  * The frame of a table sorted by its headings: each sortable heading links to the same view sorted by it (ascending
  * first, then the other way), marks its direction with aria-sort and an arrow, and the rows render their cells.
- * The registry and the review queue share it; each brings its own columns and its own addresses.
+ * The registry and the review queue share it; each brings its own columns and its own addresses. Cell padding and
+ * row rules are set once on the table rather than on every cell.
  */
 export function SortableTable<TFeatures extends TableFeatures, TData extends RowData>({
   table,
@@ -16,6 +18,7 @@ export function SortableTable<TFeatures extends TableFeatures, TData extends Row
   preventScrollReset = false,
   rowClassName = "",
   testId,
+  body,
 }: {
   table: ReactTable<TFeatures, TData>;
   /** The order the rows are in (sorted on the server or by the table), which the headings show. */
@@ -26,10 +29,15 @@ export function SortableTable<TFeatures extends TableFeatures, TData extends Row
   preventScrollReset?: boolean;
   rowClassName?: string;
   testId?: string;
+  /** The table's body written out by the caller, cells in the order of its columns; without it the row model renders. */
+  body?: ReactNode;
 }) {
   return (
     <div className="card overflow-x-auto">
-      <table className="w-full border-collapse text-sm" data-testid={testId}>
+      <table
+        className="w-full border-collapse text-sm [&_td]:px-3 [&_td]:py-2 [&_td]:align-top [&_th]:px-3 [&_th]:py-2 [&_th]:font-semibold [&>tbody>tr]:border-b [&>tbody>tr]:border-rule [&>tbody>tr:last-child]:border-b-0"
+        data-testid={testId}
+      >
         <caption className="sr-only">{caption}</caption>
         <thead>
           {table.getHeaderGroups().map((group) => (
@@ -40,7 +48,7 @@ export function SortableTable<TFeatures extends TableFeatures, TData extends Row
                 const to = sortTo(header.column.id, sorted === "asc" ? "desc" : "asc");
                 const name = String(header.column.columnDef.header).toLowerCase();
                 return (
-                  <th key={header.id} scope="col" className="px-3 py-2 font-semibold" aria-sort={sorted ? (sorted === "asc" ? "ascending" : "descending") : undefined}>
+                  <th key={header.id} scope="col" aria-sort={sorted ? (sorted === "asc" ? "ascending" : "descending") : undefined}>
                     {to !== null ? (
                       <Link
                         to={to}
@@ -60,18 +68,18 @@ export function SortableTable<TFeatures extends TableFeatures, TData extends Row
             </tr>
           ))}
         </thead>
-        <tbody>
-          {table.getRowModel().rows.map((row) => (
-            <tr key={row.id} className={`border-b border-rule last:border-b-0 ${rowClassName}`.trim()}>
-              {row.getAllCells().map((cell) => (
-                // flexRender rather than <table.FlexRender>: one component fewer per cell on a page of 200 rows.
-                <td key={cell.id} className="px-3 py-2 align-top">
-                  {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                </td>
-              ))}
-            </tr>
-          ))}
-        </tbody>
+        {body ?? (
+          <tbody>
+            {table.getRowModel().rows.map((row) => (
+              <tr key={row.id} className={rowClassName || undefined}>
+                {row.getAllCells().map((cell) => (
+                  // flexRender rather than <table.FlexRender>: one component fewer per cell on a page of 200 rows.
+                  <td key={cell.id}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>
+                ))}
+              </tr>
+            ))}
+          </tbody>
+        )}
       </table>
     </div>
   );

@@ -39,7 +39,7 @@ function curlFor(e: Endpoint, baseUrl: string): string {
   if (e.method === "POST" && e.path.endsWith("/nfe")) return `curl -s${auth} -H "Content-Type: application/json" -d '${NFE_EXAMPLE}' ${baseUrl}${path}`;
   if (e.method === "POST" && e.path.endsWith("/epm")) return `curl -s${auth} -H "Content-Type: application/json" -d '${EPM_EXAMPLE}' ${baseUrl}${path}`;
   if (e.method === "POST") return `# from a signed-in browser page only; tokens are read-only`;
-  const out = e.path.endsWith("/download") ? " -o hemt-baseline-r3.csv" : "";
+  const out = e.path.endsWith("/download") ? " --compressed -o hemt-baseline-r3.csv" : "";
   return `curl -sf${auth}${out} "${baseUrl}${path}${query}"`;
 }
 

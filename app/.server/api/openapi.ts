@@ -97,16 +97,17 @@ function buildRegistry(): OpenAPIRegistry {
   });
   registry.registerPath({
     method: "get", path: "/api/v1/sets/{slug}/releases/{number}/download", tags: ["sets"], summary: "The frozen bytes of a release, JSON or CSV",
-    description: "The same bytes for every request, for ever. ETag is the SHA-256 of the content (JSON) or of the CSV bytes; send If-None-Match for a 304. Downloads by token are written to the audit log.",
+    description: "The same bytes for every request, for ever, as identity or compressed (br or gzip) by Accept-Encoding; decoded, every form is the identity bytes. The identity ETag is the SHA-256 of the content (JSON) or of the CSV bytes; an encoded form has its own ETag beginning with it. Send If-None-Match for a 304. Downloads by token are written to the audit log.",
     request: { params: releaseParams, query: downloadQuerySchema },
     responses: {
       200: {
         description: "The release file, with Content-Disposition naming it <slug>-r<number>.<format>.",
         headers: {
-          ETag: { description: "\"<sha256>\"", schema: { type: "string" } },
+          ETag: { description: "\"<sha256>\" as identity; \"<sha256>-<br|gzip>-<16 hex of the encoded bytes' SHA-256>\" for an encoded form", schema: { type: "string" } },
+          "Content-Encoding": { description: "br or gzip when the request accepts one; absent for identity.", schema: { type: "string" } },
           "Cache-Control": { description: "private, max-age=31536000, immutable (members only: never kept by a shared cache)", schema: { type: "string" } },
-          Vary: { description: "Cookie, Authorization", schema: { type: "string" } },
-          "Repr-Digest": { description: "sha-256 of the bytes served (RFC 9530).", schema: { type: "string" } },
+          Vary: { description: "Cookie, Authorization, Accept-Encoding", schema: { type: "string" } },
+          "Repr-Digest": { description: "sha-256 of the bytes served, encoded ones for an encoded form (RFC 9530).", schema: { type: "string" } },
           "X-Bandledger-Release-Sha256": { description: "The release's content hash, for both formats.", schema: { type: "string" } },
         },
         content: { "application/json": { schema: releaseDocumentSchema }, "text/csv": { schema: z.string().meta({ description: "The CSV form (docs/release-format.md)." }) } },

@@ -358,12 +358,14 @@ export async function closeDb(): Promise<void> {
 }
 
 let shutdownInstalled = false;
-// An open pool keeps the process alive after the HTTP server closes.
+// An open pool keeps the process alive after the HTTP server closes. A worker of the production server
+// (server/worker.js) first lets the requests under way finish, then emits "bandledger:http-closed".
 function installShutdown() {
   if (shutdownInstalled || process.env.VITEST) return;
   shutdownInstalled = true;
-  for (const signal of ["SIGTERM", "SIGINT"] as const) {
-    process.once(signal, () => {
+  const events = process.env.BANDLEDGER_CLUSTER_WORKER === "1" ? ["bandledger:http-closed"] : ["SIGTERM", "SIGINT"];
+  for (const event of events) {
+    process.once(event, () => {
       void closeDb().finally(() => process.exit(0));
     });
   }

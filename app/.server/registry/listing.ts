@@ -1,6 +1,7 @@
 import { and, asc, count, desc, eq, inArray, like, or, sql, type SQL } from "drizzle-orm";
-import { quantityByKey, type Valley } from "~/domain/quantities";
-import type { Method, RegistryView } from "~/domain/registry-schemas";
+import { normalisedDecimalKey } from "~/domain/exact-decimal";
+import { describeTemperature, quantityByKey, VALLEY_LABELS, type Valley } from "~/domain/quantities";
+import { METHOD_LABELS, type Method, type RegistryView } from "~/domain/registry-schemas";
 import { materialFamilies, materials, quantities, records, revisions, sources } from "../db/schema";
 import type { Executor } from "./executor";
 import { sourceRef, type StoredSource } from "./revision-rows";
@@ -88,61 +89,136 @@ function registryOrder(view: RegistryView): SQL[] {
   return columns.map((c) => d(c));
 }
 
+type PageRowColumns = {
+  recordId: number; status: "active" | "retired"; materialKey: string; materialName: string; familyKey: string;
+  quantityKey: string; quantitySymbol: string; quantityName: string; unit: string;
+  temperatureK: string | null; valley: Valley | null; composition: string | null;
+  /** DATETIME(3) as MariaDB writes it in UTC ("2026-01-14 09:30:00.000"): the ORM's driver reads dates as text. */
+  changedAt: string;
+  revisionId: number; seq: number; kind: "value" | "retirement"; value: string | null; uncertainty: string | null; method: Method | null;
+  sourceId: number | null; sourceKind: StoredSource["kind"] | null; sourceTitle: string | null; sourceAuthors: string | null;
+  sourceYear: number | null; sourceDoi: string | null; sourceReportNumber: string | null;
+};
+
+// The page's rows in one statement: the ids of the page in the view's order (a derived table that reads one index
+// of records and stops at the page), joined for display and put in the same order again. Mapped by hand: the query
+// builder's per-column mapping of seven joined tables cost more than the statement (a CPU profile of the page).
+function pageRowsStatement(where: SQL | undefined, order: SQL[], size: number, offset: number): SQL {
+  return sql`
+    SELECT records.id AS recordId, records.status, m.\`key\` AS materialKey, m.name AS materialName, f.\`key\` AS familyKey,
+      q.\`key\` AS quantityKey, q.symbol AS quantitySymbol, q.name AS quantityName, q.canonical_unit AS unit,
+      records.temperature_k AS temperatureK, records.valley, records.composition, records.updatedAt AS changedAt,
+      v.id AS revisionId, v.seq, v.kind, v.value, v.uncertainty, v.method,
+      s.id AS sourceId, s.kind AS sourceKind, s.title AS sourceTitle, s.authors AS sourceAuthors, s.year AS sourceYear,
+      s.doi AS sourceDoi, s.report_number AS sourceReportNumber
+    FROM (SELECT ${records.id} AS id FROM ${records} ${where ? sql`WHERE ${where}` : sql``} ORDER BY ${sql.join(order, sql`, `)} LIMIT ${size} OFFSET ${offset}) page_ids
+    JOIN ${records} ON ${records.id} = page_ids.id
+    JOIN ${materials} m ON m.id = ${records.materialId}
+    JOIN ${materialFamilies} f ON f.id = m.family_id
+    JOIN ${quantities} q ON q.id = ${records.quantityId}
+    JOIN ${revisions} v ON v.id = ${records.currentRevisionId}
+    LEFT JOIN ${sources} s ON s.id = v.source_id
+    ORDER BY ${sql.join(order, sql`, `)}`;
+}
+
+function registryRow(r: PageRowColumns): RegistryRow {
+  const source = sourceRef(
+    r.sourceId === null
+      ? null
+      : { id: r.sourceId, kind: r.sourceKind, title: r.sourceTitle, authors: r.sourceAuthors, year: r.sourceYear, doi: r.sourceDoi, reportNumber: r.sourceReportNumber },
+  );
+  return {
+    recordId: r.recordId, status: r.status, materialKey: r.materialKey, materialName: r.materialName, familyKey: r.familyKey,
+    quantityKey: r.quantityKey, quantitySymbol: r.quantitySymbol, quantityName: r.quantityName, unit: r.unit,
+    temperatureK: r.temperatureK, valley: r.valley, composition: r.composition,
+    revisionId: r.revisionId, seq: r.seq, kind: r.kind, value: r.value, uncertainty: r.uncertainty, method: r.method,
+    source, changedAt: new Date(`${r.changedAt.replace(" ", "T")}Z`).toISOString(),
+  };
+}
+
 /**
  * One page of the registry table: the current revision of each record that passes the view's filters, sorted
- * and paged in SQL on the records table, with the total count; then the page's rows joined for display.
+ * and paged in SQL on the records table, with the total count (counted beside the page, in parallel).
  */
 export async function listRegistry(ex: Executor, view: RegistryView): Promise<RegistryPage> {
   const text = view.q ? await matchText(ex, view.q) : null;
   if (text && !text.materialIds.length && !text.quantityIds.length && !text.sourceIds.length) return { total: 0, page: 1, pageCount: 1, size: view.size, rows: [] };
   const where = registryFilters(view, text);
-  const idsOf = (page: number) =>
-    ex.select({ id: records.id }).from(records).where(where).orderBy(...registryOrder(view)).limit(view.size).offset((page - 1) * view.size);
-  const [[{ n }], firstTry] = await Promise.all([ex.select({ n: count() }).from(records).where(where), idsOf(view.page)]);
+  const order = registryOrder(view);
+  const rowsOf = async (page: number) => {
+    const [rows] = (await ex.execute(pageRowsStatement(where, order, view.size, (page - 1) * view.size))) as unknown as [PageRowColumns[]];
+    return rows;
+  };
+  const [[{ n }], firstTry] = await Promise.all([ex.select({ n: count() }).from(records).where(where), rowsOf(view.page)]);
   const total = Number(n);
   const pageCount = Math.max(1, Math.ceil(total / view.size));
   const page = Math.min(view.page, pageCount);
-  const ids = (page === view.page ? firstTry : await idsOf(page)).map((r) => r.id);
-  if (ids.length === 0) return { total, page, pageCount, size: view.size, rows: [] };
-  const rows = await ex
-    .select({
-      recordId: records.id,
-      status: records.status,
-      materialKey: materials.key,
-      materialName: materials.name,
-      familyKey: materialFamilies.key,
-      quantityKey: quantities.key,
-      quantitySymbol: quantities.symbol,
-      quantityName: quantities.name,
-      unit: quantities.canonicalUnit,
-      temperatureK: records.temperatureK,
-      valley: records.valley,
-      composition: records.composition,
-      revisionId: revisions.id,
-      seq: revisions.seq,
-      kind: revisions.kind,
-      value: revisions.value,
-      uncertainty: revisions.uncertainty,
-      method: revisions.method,
-      changedAt: records.updatedAt,
-      source: { id: sources.id, kind: sources.kind, title: sources.title, authors: sources.authors, year: sources.year, doi: sources.doi, reportNumber: sources.reportNumber },
-    })
-    .from(records)
-    .innerJoin(materials, eq(materials.id, records.materialId))
-    .innerJoin(materialFamilies, eq(materialFamilies.id, materials.familyId))
-    .innerJoin(quantities, eq(quantities.id, records.quantityId))
-    .innerJoin(revisions, eq(revisions.id, records.currentRevisionId))
-    .leftJoin(sources, eq(sources.id, revisions.sourceId))
-    .where(inArray(records.id, ids));
-  const position = new Map(ids.map((id, i) => [id, i]));
-  rows.sort((a, b) => position.get(a.recordId)! - position.get(b.recordId)!);
-  return {
-    total,
-    page,
-    pageCount,
-    size: view.size,
-    rows: rows.map((r) => ({ ...r, changedAt: r.changedAt.toISOString(), source: sourceRef(r.source) })),
-  };
+  const rows = page === view.page ? firstTry : await rowsOf(page);
+  return { total, page, pageCount, size: view.size, rows: rows.map(registryRow) };
+}
+
+/**
+ * One row of the registry table as the page sends it to the browser: what the table shows and nothing else, as a
+ * tuple (an object's keys cost more than its values in React Router's hydration data), labels already formatted.
+ * The quantity goes by its key (symbol, name and unit come from the catalogue in ~/domain/quantities), the source by
+ * its place in the page's `sources`, so a source cited by several rows is sent once.
+ */
+export type RegistryTableRow = [
+  recordId: number,
+  materialKey: string,
+  quantityKey: string,
+  /** The composition as it reads ("0.3"), null for a binary. */
+  composition: string | null,
+  /** The current revision retires the record. */
+  retirement: boolean,
+  /** The value in the quantity's unit. */
+  value: string | null,
+  uncertainty: string | null,
+  /** "300 K", "0 K fit", "T-independent". */
+  temperature: string,
+  /** "Γ", or "—" without a valley. */
+  valley: string,
+  /** Index in the page's `sources`, null without a source. */
+  source: number | null,
+  /** The method's label, null when none is stated. */
+  method: string | null,
+  /** The day of the last change, "2026-01-14". */
+  changed: string,
+  seq: number,
+];
+
+/** A source the page's rows cite: its id (for its page), short label and full title. */
+export type RegistryTableSource = [id: number, label: string, title: string];
+
+export type RegistryTablePage = Omit<RegistryPage, "rows"> & { rows: RegistryTableRow[]; sources: RegistryTableSource[] };
+
+/** The page as the registry table shows it (see RegistryTableRow). */
+export function registryTablePage(page: RegistryPage): RegistryTablePage {
+  const sourceIndex = new Map<number, number>();
+  const cited: RegistryTableSource[] = [];
+  const rows = page.rows.map((r): RegistryTableRow => {
+    let source: number | null = null;
+    if (r.source) {
+      source = sourceIndex.get(r.source.id) ?? cited.push([r.source.id, r.source.label, r.source.title]) - 1;
+      sourceIndex.set(r.source.id, source);
+    }
+    return [
+      r.recordId,
+      r.materialKey,
+      r.quantityKey,
+      r.composition === null ? null : normalisedDecimalKey(r.composition),
+      r.kind === "retirement",
+      r.value,
+      r.uncertainty,
+      describeTemperature(quantityByKey(r.quantityKey), r.temperatureK),
+      r.valley ? VALLEY_LABELS[r.valley] : "—",
+      source,
+      r.method ? METHOD_LABELS[r.method] : null,
+      r.changedAt.slice(0, 10),
+      r.seq,
+    ];
+  });
+  return { total: page.total, page: page.page, pageCount: page.pageCount, size: page.size, rows, sources: cited };
 }
 
 export type RegistryOptions = {
@@ -151,36 +227,40 @@ export type RegistryOptions = {
   quantities: { key: string; name: string; symbol: string }[];
 };
 
-async function optionRows(ex: Executor, family: string | undefined, limit: number | undefined) {
-  let mats = ex
-    .select({ key: materials.key, name: materials.name, familyKey: materialFamilies.key })
-    .from(materials)
-    .innerJoin(materialFamilies, eq(materialFamilies.id, materials.familyId))
-    .where(family ? eq(materialFamilies.key, family) : undefined)
-    .orderBy(asc(materials.key))
-    .$dynamic();
-  if (limit !== undefined) mats = mats.limit(limit + 1);
+/** Families, every material and the record quantities: the choices of filters and pickers. */
+export async function registryOptions(ex: Executor): Promise<RegistryOptions> {
   const [families, materialRows, qs] = await Promise.all([
     ex.select({ key: materialFamilies.key, name: materialFamilies.name }).from(materialFamilies).orderBy(asc(materialFamilies.name)),
-    mats,
+    ex
+      .select({ key: materials.key, name: materials.name, familyKey: materialFamilies.key })
+      .from(materials)
+      .innerJoin(materialFamilies, eq(materialFamilies.id, materials.familyId))
+      .orderBy(asc(materials.key)),
     ex.select({ key: quantities.key, name: quantities.name, symbol: quantities.symbol }).from(quantities).orderBy(asc(quantities.sortOrder)),
   ]);
   return { families, materials: materialRows, quantities: qs.filter((q) => !quantityByKey(q.key)?.storedWith) };
 }
 
-/** Families, every material and the record quantities: the choices of filters and pickers. */
-export async function registryOptions(ex: Executor): Promise<RegistryOptions> {
-  return optionRows(ex, undefined, undefined);
-}
-
 /** Beyond this many materials (in the chosen family, or all) the registry's filter takes a typed key instead of a list. */
 export const MATERIAL_LIST_LIMIT = 100;
 
-export type RegistryFilterOptions = Omit<RegistryOptions, "materials"> & { materials: RegistryOptions["materials"] | null };
+/** The filters' families and materials; their quantities are the catalogue's (RECORD_QUANTITIES in ~/domain/quantities). */
+export type RegistryFilterOptions = Pick<RegistryOptions, "families"> & { materials: RegistryOptions["materials"] | null };
 
-/** The choices of the registry's filters; `materials` is null when there are too many to list (the key is typed). */
+/**
+ * The choices of the registry's filters that live in the database; `materials` is null when there are too many to list
+ * (the key is typed). The quantities table follows the catalogue (syncQuantities), so the filter lists the catalogue's.
+ */
 export async function registryFilterOptions(ex: Executor, options: { family?: string } = {}): Promise<RegistryFilterOptions> {
-  const rows = await optionRows(ex, options.family, MATERIAL_LIST_LIMIT);
-  return { ...rows, materials: rows.materials.length > MATERIAL_LIST_LIMIT ? null : rows.materials };
+  const [families, materialRows] = await Promise.all([
+    ex.select({ key: materialFamilies.key, name: materialFamilies.name }).from(materialFamilies).orderBy(asc(materialFamilies.name)),
+    ex
+      .select({ key: materials.key, name: materials.name, familyKey: materialFamilies.key })
+      .from(materials)
+      .innerJoin(materialFamilies, eq(materialFamilies.id, materials.familyId))
+      .where(options.family ? eq(materialFamilies.key, options.family) : undefined)
+      .orderBy(asc(materials.key))
+      .limit(MATERIAL_LIST_LIMIT + 1),
+  ]);
+  return { families, materials: materialRows.length > MATERIAL_LIST_LIMIT ? null : materialRows };
 }
-

@@ -1,32 +1,34 @@
 import type { ReleaseFormat } from "../../domain/release-format";
 import { type Command, type Io, UsageError } from "../command";
 import { parseOptions } from "../args";
-import { fetchVerifiedRelease, ReleaseFailure, SERVER_USAGE, serverFrom, serverOptions, writeWhole, type ReleaseMeta, type Server } from "../release-download";
+import { COMPRESSIONS, fetchVerifiedRelease, ReleaseFailure, SERVER_USAGE, serverFrom, serverOptions, writeWhole, type Compression, type ReleaseMeta, type Server } from "../release-download";
 import { parseReleaseRef, RELEASE_REF_EXAMPLE, RELEASE_REF_FORM, type ReleaseRef } from "../release-ref";
 
 export { EXIT_FAILED, EXIT_MISMATCH } from "../release-download";
 
-const usage = `usage: bandledger pull ${RELEASE_REF_FORM} --out <file> [--format json|csv] [--url URL] [--token TOKEN]
+const usage = `usage: bandledger pull ${RELEASE_REF_FORM} --out <file> [--format json|csv] [--compression auto|br|gzip|none] [--url URL] [--token TOKEN]
 
 Downloads a frozen release, verifies it and writes it only when every check holds.
   ${RELEASE_REF_FORM}  the set's short name and release number, e.g. ${RELEASE_REF_EXAMPLE}
   --out            where to write the file (written whole, through a temporary file and a rename)
   --format         json (default) or csv
+  --compression    what to ask the server for: auto (default: brotli or gzip), br, gzip, or none
 ${SERVER_USAGE}
-Checks: the release's hash from the API, the download's ETag and Repr-Digest, and the file's own hash recomputed
-from its canonical form. Exit 0 written, 1 server or network error, 2 wrong arguments, 3 hash mismatch (no file).`;
+Checks: the release's hash from the API, the download's ETag and Repr-Digest (of the bytes as sent), the SHA-256
+of the decoded bytes, and the file's own hash recomputed from its canonical form. Exit 0 written, 1 server or network error, 2 wrong arguments, 3 hash mismatch (no file).`;
 
 const options = {
   out: { type: "string" },
   format: { type: "string" },
+  compression: { type: "string" },
   ...serverOptions,
   help: { type: "boolean", short: "h" },
 } as const;
 
-export async function pullRelease(ref: ReleaseRef, format: ReleaseFormat, server: Server, out: string): Promise<{ sha256: string; bytes: number; meta: ReleaseMeta }> {
-  const release = await fetchVerifiedRelease(ref, format, server);
+export async function pullRelease(ref: ReleaseRef, format: ReleaseFormat, server: Server, out: string, compression: Compression = "auto"): Promise<{ sha256: string; bytes: number; encoding: string; meta: ReleaseMeta }> {
+  const release = await fetchVerifiedRelease(ref, format, server, compression);
   await writeWhole(out, release.bytes);
-  return { sha256: release.meta.sha256, bytes: release.bytes.length, meta: release.meta };
+  return { sha256: release.meta.sha256, bytes: release.bytes.length, encoding: release.encoding, meta: release.meta };
 }
 
 export const pullCommand: Command = {
@@ -45,10 +47,12 @@ export const pullCommand: Command = {
     if (!out) throw new UsageError("--out is required");
     const format = (values.format as string | undefined) ?? "json";
     if (format !== "json" && format !== "csv") throw new UsageError(`--format must be json or csv (got "${format}")`);
+    const compression = (values.compression as string | undefined) ?? "auto";
+    if (!(COMPRESSIONS as readonly string[]).includes(compression)) throw new UsageError(`--compression must be auto, br, gzip or none (got "${compression}")`);
     const server = serverFrom(values);
     try {
-      const result = await pullRelease(ref, format, server, out);
-      io.stdout(`ok ${out}: ${result.meta.set.name} release ${ref.number}, ${result.meta.itemCount} values, sha256 ${result.sha256}\n`);
+      const result = await pullRelease(ref, format, server, out, compression as Compression);
+      io.stdout(`ok ${out}: ${result.meta.set.name} release ${ref.number}, ${result.meta.itemCount} values, sha256 ${result.sha256} (sent as ${result.encoding})\n`);
       return 0;
     } catch (e) {
       if (e instanceof ReleaseFailure) {
