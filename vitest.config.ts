@@ -48,6 +48,20 @@ export default defineConfig({
           fileParallelism: false,
         },
       },
+      {
+        resolve: { alias },
+        test: {
+          // The app on a three-node Galera cluster (scripts/cluster.sh): replication, races across nodes, a node killed.
+          // Bounded inside `npm test`; BANDLEDGER_RELIABILITY=full (npm run test:cluster) runs every round.
+          name: "cluster",
+          globalSetup: ["tests/support/cluster-setup.ts"],
+          include: ["tests/cluster/**/*.test.ts"],
+          environment: "node",
+          testTimeout: 300_000,
+          hookTimeout: 300_000,
+          fileParallelism: false,
+        },
+      },
     ],
   },
 });

@@ -7,9 +7,13 @@ import { ServerRouter, type EntryContext, type HandleDataRequestFunction, type H
 import { NonceContext } from "./components/nonce";
 import { isDatabaseDown } from "./.server/db/client";
 import { markDatabaseSuspect } from "./.server/db/health";
+import { startHousekeeping } from "./.server/housekeeping";
 import { applySecurityHeaders, createNonce } from "./.server/security-headers";
 
 export const streamTimeout = 5_000;
+
+// The server module loads once when the app starts: sweep what a killed upload left (in the background).
+startHousekeeping();
 
 export default function handleRequest(
   request: Request,

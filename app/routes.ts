@@ -45,6 +45,7 @@ export default [
 
   // physics checks
   route("checks/nfe", "routes/checks.nfe.tsx"),
+  route("checks/epm", "routes/checks.epm.tsx"),
   route("checks/report", "routes/checks.report.ts"),
   route("admin/tolerances", "routes/admin.tolerances.tsx"),
 
@@ -67,8 +68,10 @@ export default [
   route("api/v1/sets/:slug/releases", "routes/api.v1.set-releases.ts"),
   route("api/v1/sets/:slug/releases/:number", "routes/api.v1.release.ts"),
   route("api/v1/sets/:slug/releases/:number/download", "routes/api.v1.release-download.ts"),
+  route("api/v1/sets/:slug/releases/:number/evaluate", "routes/api.v1.release-evaluate.ts"),
   route("api/v1/sets/:slug/compare", "routes/api.v1.set-compare.ts"),
   route("api/v1/checks/nfe", "routes/api.v1.checks.nfe.ts"),
+  route("api/v1/checks/epm", "routes/api.v1.checks.epm.ts"),
   route("api/v1/*", "routes/api.v1.not-found.ts"),
 
   route("*", "routes/not-found.tsx"),

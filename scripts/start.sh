@@ -21,12 +21,17 @@ cleanup() {
 }
 trap cleanup INT TERM EXIT
 
-if [ -z "${DATABASE_URL:-}" ]; then
-  if ! bash scripts/db.sh status >/dev/null 2>&1; then started_db=1; fi
-  bash scripts/db.sh start
+if [ -n "${DATABASE_URLS:-}" ]; then
+  # A cluster: its runtime account cannot change the schema; `npm run cluster -- migrate` migrates through one node.
+  say "using the database cluster in DATABASE_URLS (migrations and demo data: npm run cluster -- migrate)"
+else
+  if [ -z "${DATABASE_URL:-}" ]; then
+    if ! bash scripts/db.sh status >/dev/null 2>&1; then started_db=1; fi
+    bash scripts/db.sh start
+  fi
+  npx tsx app/.server/db/migrate-cli.ts
+  npx tsx seed-data/load.ts --if-empty
 fi
-npx tsx app/.server/db/migrate-cli.ts
-npx tsx seed-data/load.ts --if-empty
 say "building the app"
 npx react-router build >/dev/null
 
@@ -35,7 +40,8 @@ if [ -z "${SMTP_URL:-}" ]; then
   pids+=($!)
 fi
 
-node node_modules/@react-router/serve/bin.js ./build/server/index.js >>"${BANDLEDGER_LOG:-.data/app.log}" 2>&1 &
+# One worker process per core (BANDLEDGER_WORKERS to choose), all on one port; see server/main.ts.
+node --import tsx server/main.ts >>"${BANDLEDGER_LOG:-.data/app.log}" 2>&1 &
 pids+=($!)
 for _ in $(seq 1 100); do
   if curl -fsS -o /dev/null "http://$HOST:$PORT/healthz" 2>/dev/null; then break; fi
@@ -44,7 +50,7 @@ for _ in $(seq 1 100); do
 done
 cat >&2 <<MSG
 
-  Bandledger is serving on $BANDLEDGER_PUBLIC_URL  (request log: ${BANDLEDGER_LOG:-.data/app.log})
+  Bandledger is serving on $BANDLEDGER_PUBLIC_URL with ${BANDLEDGER_WORKERS:-$(nproc)} worker processes  (request log: ${BANDLEDGER_LOG:-.data/app.log})
   Sign in to the demo with one of the team's addresses, e.g. ines.carvalho@kestrel-devices.test (admin)
   or ravi.menon@kestrel-devices.test (lead); $( [ "$BANDLEDGER_MAILBOX" = on ] && echo "the code arrives in the local mailbox at $BANDLEDGER_PUBLIC_URL/dev/mailbox (open it in a browser on this machine)" || echo "the code is mailed through ${SMTP_URL:-the local sink} (the local mailbox page is off)" )
   Ctrl-C stops the app and the database it started.

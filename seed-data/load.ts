@@ -2,6 +2,7 @@ import { eq, sql } from "drizzle-orm";
 import { closeDb, db, type Db } from "~/.server/db/client";
 import { familyLeads, materialFamilies, users } from "~/.server/db/schema";
 import { loadProposals } from "./proposals";
+import { syncQuantities } from "~/.server/registry/catalogue";
 import { loadRegistry } from "./registry";
 import { loadSets } from "./sets";
 import { FAMILIES, PEOPLE } from "./team";
@@ -45,6 +46,8 @@ async function main() {
   const [{ n }] = await d.select({ n: sql<number>`count(*)` }).from(users);
   if (ifEmpty && Number(n) > 0) {
     await ensureFirstAdmin(d);
+    // The quantity catalogue is code: a database made before a quantity was added gets it on the next start.
+    await syncQuantities(d);
     console.error("bandledger: demo data already present, keeping it");
   } else {
     await loadDemo(d);

@@ -43,6 +43,19 @@ export const DEMO_SOURCES = {
     authors: "E. Tiesinga, P. J. Mohr, D. B. Newell, B. N. Taylor",
     year: 2021,
   },
+  CB66: {
+    kind: "bibtex",
+    bibtex: `@article{CohenBergstresser1966,
+  author  = {Cohen, Marvin L. and Bergstresser, T. K.},
+  title   = {Band Structures and Pseudopotential Form Factors for Fourteen Semiconductors of the Diamond and Zinc-Blende Structures},
+  journal = {Physical Review},
+  volume  = {141},
+  number  = {2},
+  pages   = {789--796},
+  year    = {1966},
+  doi     = {10.1103/PhysRev.141.789}
+}`,
+  },
   "KD-SIM-2025-007": {
     kind: "report",
     reportNumber: "KD-SIM-2025-007",
@@ -130,6 +143,31 @@ function v01(material: string, quantity: string, value: string, unit: string, ex
     }],
   };
 }
+
+// Local pseudopotential form factors of [CB66] in Ry, with the lattice constant they were fitted with (Å). The
+// table values and its number are from memory; the pseudopotential check uses the registry's own a.
+const CB66_FORM_FACTORS: { material: string; fittedA: string; ry: Record<string, string>; approver: Person }[] = [
+  { material: "Si", fittedA: "5.43", ry: { ff_vs3: "-0.21", ff_vs8: "0.04", ff_vs11: "0.08" }, approver: "hanna.lindqvist" },
+  { material: "Ge", fittedA: "5.66", ry: { ff_vs3: "-0.23", ff_vs8: "0.01", ff_vs11: "0.06" }, approver: "hanna.lindqvist" },
+  { material: "GaAs", fittedA: "5.64", ry: { ff_vs3: "-0.23", ff_vs8: "0.01", ff_vs11: "0.06", ff_va3: "0.07", ff_va4: "0.05", ff_va11: "0.01" }, approver: "ravi.menon" },
+  { material: "InAs", fittedA: "6.04", ry: { ff_vs3: "-0.22", ff_vs8: "0.00", ff_vs11: "0.05", ff_va3: "0.08", ff_va4: "0.05", ff_va11: "0.03" }, approver: "ravi.menon" },
+  { material: "InP", fittedA: "5.86", ry: { ff_vs3: "-0.23", ff_vs8: "0.01", ff_vs11: "0.06", ff_va3: "0.07", ff_va4: "0.05", ff_va11: "0.01" }, approver: "hanna.lindqvist" },
+  { material: "GaP", fittedA: "5.44", ry: { ff_vs3: "-0.22", ff_vs8: "0.03", ff_vs11: "0.07", ff_va3: "0.12", ff_va4: "0.07", ff_va11: "0.02" }, approver: "hanna.lindqvist" },
+  { material: "GaSb", fittedA: "6.12", ry: { ff_vs3: "-0.22", ff_vs8: "0.00", ff_vs11: "0.05", ff_va3: "0.06", ff_va4: "0.05", ff_va11: "0.01" }, approver: "ravi.menon" },
+];
+
+const CB66_RECORDS: DemoRecord[] = CB66_FORM_FACTORS.flatMap(({ material, fittedA, ry, approver }) =>
+  Object.entries(ry).map(([quantity, value]): DemoRecord => ({
+    material,
+    quantity,
+    history: [{
+      value, unit: "Ry", method: "fitted", source: "CB66",
+      locator: `Table I, form factors (Ry) and lattice constants; ${material} fitted with a = ${fittedA} Å`,
+      notes: `[CB66] local form factor, fitted to optical transitions; value and table number from memory, check them against the paper. Typed in Ry, stored exactly in eV (1 Ry = 13.605693122994 eV). The authors fitted with a = ${fittedA} Å.`,
+      by: "mei.tanaka", approver, on: "2026-02-24",
+    }],
+  })),
+);
 
 const TEAM_FIT_RANGE = "The 0–400 K range is the team's rule for using this fit; the recalled [V01] table states none.";
 
@@ -260,6 +298,7 @@ export const DEMO_RECORDS: DemoRecord[] = [
     ],
   },
   v01("InGaAs", "eg_bowing_c0", "0.477", "eV", { valley: "G", locator: "InGaAs bowing of the Γ gap", on: "2025-09-25" }),
+  ...CB66_RECORDS,
 ];
 
 function at(day: string, hour = 10): Date {

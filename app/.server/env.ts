@@ -1,4 +1,4 @@
-import { existsSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
+import { existsSync, linkSync, mkdirSync, readFileSync, unlinkSync, writeFileSync } from "node:fs";
 import { randomBytes } from "node:crypto";
 import { isIP } from "node:net";
 import path from "node:path";
@@ -21,6 +21,12 @@ const schema = z.object({
   MIGRATION_DATABASE_URL: z.string().regex(/^mysql:\/\//, "MIGRATION_DATABASE_URL must be a mysql:// URL").optional(),
   // The host part of the runtime account (user@host) that the migration step grants its row rights to.
   BANDLEDGER_DB_ACCOUNT_HOST: z.string().min(1).max(255).default("127.0.0.1"),
+  // The nodes of a Galera cluster, comma-separated, the preferred one first; set, it takes the place of DATABASE_URL.
+  DATABASE_URLS: z
+    .string()
+    .optional()
+    .transform((v) => (v?.trim() ? v.split(",").map((u) => u.trim()).filter(Boolean) : undefined))
+    .refine((list) => !list || list.every((u) => /^mysql:\/\//.test(u)), "DATABASE_URLS must be mysql:// URLs separated by commas"),
   BANDLEDGER_DATA_DIR: z.string().default(path.join(projectRoot, ".data")),
   BANDLEDGER_DB_PORT: z.coerce.number().int().min(1).max(65535).default(3407),
   BANDLEDGER_DB_NAME: z.string().regex(/^[A-Za-z0-9_]+$/).default("bandledger"),
@@ -50,18 +56,31 @@ export type Env = z.infer<typeof schema> & {
   databaseUrl: string;
   migrationDatabaseUrl: string;
   runtimeAccount: { user: string; host: string };
+  /** Every database the app may use, in order of preference: the DATABASE_URLS list, else the one URL. */
+  databaseUrls: string[];
+  /** DATABASE_URLS is set: the app runs on a Galera cluster (reads wait for the cluster's commits, failover on). */
+  cluster: boolean;
   sessionSecret: string;
   mailboxDir: string;
   mailboxEnabled: boolean;
 };
 
+// Several app processes may start at once on a fresh data folder: the secret is written aside and linked into
+// place, which fails for all but the first, and every process then reads the one that won.
 function readOrCreateSecret(dataDir: string, file: string): string {
   const p = path.join(dataDir, file);
   if (existsSync(p)) return readFileSync(p, "utf8").trim();
   mkdirSync(dataDir, { recursive: true });
-  const secret = randomBytes(32).toString("hex");
-  writeFileSync(p, secret + "\n", { mode: 0o600 });
-  return secret;
+  const aside = `${p}.${process.pid}.${randomBytes(4).toString("hex")}`;
+  writeFileSync(aside, randomBytes(32).toString("hex") + "\n", { mode: 0o600, flag: "wx" });
+  try {
+    linkSync(aside, p);
+  } catch (e) {
+    if ((e as NodeJS.ErrnoException).code !== "EEXIST") throw e;
+  } finally {
+    unlinkSync(aside);
+  }
+  return readFileSync(p, "utf8").trim();
 }
 
 function embeddedDatabaseUrl(dataDir: string, port: number, name: string, account: "runtime" | "migrate"): string {
@@ -85,10 +104,11 @@ export function env(): Env {
     throw new Error(`Bandledger cannot start, the environment is invalid:\n${lines}`);
   }
   const e = parsed.data;
-  const databaseUrl = e.DATABASE_URL ?? embeddedDatabaseUrl(e.BANDLEDGER_DATA_DIR, e.BANDLEDGER_DB_PORT, e.BANDLEDGER_DB_NAME, "runtime");
+  const databaseUrls = e.DATABASE_URLS ?? [e.DATABASE_URL ?? embeddedDatabaseUrl(e.BANDLEDGER_DATA_DIR, e.BANDLEDGER_DB_PORT, e.BANDLEDGER_DB_NAME, "runtime")];
+  const databaseUrl = databaseUrls[0];
   // Read only by the migration command, so the app itself never needs the schema owner's password.
   let migrationUrl: string | undefined;
-  const migration = () => (migrationUrl ??= e.MIGRATION_DATABASE_URL ?? (e.DATABASE_URL ? e.DATABASE_URL : embeddedDatabaseUrl(e.BANDLEDGER_DATA_DIR, e.BANDLEDGER_DB_PORT, e.BANDLEDGER_DB_NAME, "migrate")));
+  const migration = () => (migrationUrl ??= e.MIGRATION_DATABASE_URL ?? (e.DATABASE_URL || e.DATABASE_URLS ? databaseUrl : embeddedDatabaseUrl(e.BANDLEDGER_DATA_DIR, e.BANDLEDGER_DB_PORT, e.BANDLEDGER_DB_NAME, "migrate")));
   const runtimeAccount = { user: decodeURIComponent(new URL(databaseUrl).username), host: e.BANDLEDGER_DB_ACCOUNT_HOST };
   const sessionSecret = e.SESSION_SECRET ?? readOrCreateSecret(e.BANDLEDGER_DATA_DIR, "session-secret");
   // The mailbox holds every sign-in code: on only where asked for (npm start asks for it on loopback) or in a
@@ -100,7 +120,7 @@ export function env(): Env {
   const mailboxEnabled = e.BANDLEDGER_MAILBOX ? e.BANDLEDGER_MAILBOX === "on" : process.env.NODE_ENV === "development" && !httpsPublic;
   const mailboxDir = e.BANDLEDGER_MAILBOX_DIR ?? path.join(e.BANDLEDGER_DATA_DIR, "mailbox");
   cached = {
-    ...e, databaseUrl, runtimeAccount, sessionSecret, mailboxDir, mailboxEnabled,
+    ...e, databaseUrl, databaseUrls, cluster: Boolean(e.DATABASE_URLS), runtimeAccount, sessionSecret, mailboxDir, mailboxEnabled,
     get migrationDatabaseUrl() {
       return migration();
     },

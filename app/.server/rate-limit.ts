@@ -1,6 +1,7 @@
 import { and, count, desc, eq, lt, lte, sql } from "drizzle-orm";
 import { db } from "./db/client";
 import { signInRequests } from "./db/schema";
+import { countWindowHit, type WindowCount } from "./rate-windows";
 
 export const SIGN_IN_LIMIT = 5;
 export const SIGN_IN_WINDOW_MINUTES = 15;
@@ -57,18 +58,10 @@ export async function readCount(bucket: string, windowSeconds: number): Promise<
   return rows.length ? Number(rows[0].n) : 0;
 }
 
-// The API's per-minute limit, counted in this process: one app process serves the product, and a counter in
-// memory keeps a busy pipeline's reads from each turning into a committed write. Fixed windows, like countHit.
-const windows = new Map<string, { startedAt: number; count: number }>();
-
-export function countHitInProcess(bucket: string, windowSeconds: number, now = Date.now()): { count: number; secondsLeft: number } {
-  const length = windowSeconds * 1000;
-  let w = windows.get(bucket);
-  if (!w || now - w.startedAt >= length) {
-    if (windows.size > 10_000) for (const [k, v] of windows) if (now - v.startedAt >= length) windows.delete(k);
-    w = { startedAt: now, count: 0 };
-    windows.set(bucket, w);
-  }
-  w.count += 1;
-  return { count: w.count, secondsLeft: Math.max(1, Math.ceil((w.startedAt + length - now) / 1000)) };
+// The API's per-minute limit, counted in memory rather than by a committed row per call, so a busy pipeline's reads
+// do not each turn into a write. With several app processes (server/main.ts) the cluster's primary keeps the count
+// (rate-windows.ts), so the limit holds across them. Fixed windows, like countHit; awaited, as the count may come
+// from another process.
+export function countHitInProcess(bucket: string, windowSeconds: number, now = Date.now()): Promise<WindowCount> {
+  return countWindowHit(bucket, windowSeconds, now);
 }

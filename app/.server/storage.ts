@@ -1,6 +1,5 @@
 import { createHash, randomBytes } from "node:crypto";
-import { existsSync } from "node:fs";
-import { mkdir, readFile, rename, rm, writeFile } from "node:fs/promises";
+import { mkdir, readFile, rename, rm, utimes, writeFile } from "node:fs/promises";
 import path from "node:path";
 import { data } from "react-router";
 import { decodeCsvBytes, formatBytes } from "~/domain/csv-proposals";
@@ -26,7 +25,7 @@ export type StoredFile = { sha256: string; sizeBytes: number; kind: StoredKind; 
 
 const SHA256 = /^[0-9a-f]{64}$/;
 
-function filesDir(): string {
+export function filesDir(): string {
   return path.join(env().BANDLEDGER_DATA_DIR, "files");
 }
 
@@ -52,6 +51,8 @@ export function detectFileKind(bytes: Uint8Array, fileName: string): StoredKind 
 /**
  * Keeps a file content-addressed under the data folder after checking its size and type. Storing the same bytes
  * twice keeps one copy; a file appears under its name only once it is complete (written aside, then renamed).
+ * A copy already there gets a fresh modification time, so the sweep of unreferenced files (housekeeping.ts) gives
+ * the upload about to name it the whole grace period.
  */
 export async function storeFile(bytes: Uint8Array, options: { fileName: string; allowed: readonly StoredKind[]; maxBytes?: number }): Promise<StoredFile> {
   const maxBytes = options.maxBytes ?? MAX_ATTACHMENT_BYTES;
@@ -64,7 +65,7 @@ export async function storeFile(bytes: Uint8Array, options: { fileName: string; 
   }
   const sha256 = createHash("sha256").update(bytes).digest("hex");
   const target = storedFilePath(sha256);
-  if (!existsSync(target)) {
+  if (!(await touched(target))) {
     await mkdir(path.dirname(target), { recursive: true });
     const temporary = `${target}.${randomBytes(6).toString("hex")}.part`;
     try {
@@ -75,6 +76,18 @@ export async function storeFile(bytes: Uint8Array, options: { fileName: string; 
     }
   }
   return { sha256, sizeBytes: bytes.length, kind, contentType: CONTENT_TYPES[kind] };
+}
+
+/** Refreshes the modification time of a stored file; false when there is none (never stored, or swept meanwhile). */
+async function touched(file: string): Promise<boolean> {
+  const now = new Date();
+  try {
+    await utimes(file, now, now);
+    return true;
+  } catch (e) {
+    if ((e as NodeJS.ErrnoException).code === "ENOENT") return false;
+    throw e;
+  }
 }
 
 /** The bytes of a stored file, checked against its digest so a damaged file is never served as the original. */

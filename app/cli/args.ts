@@ -24,12 +24,20 @@ export function parseOptions(args: string[], options: Options): { values: Values
       joined.push(arg);
     }
   }
+  let parsed: ReturnType<typeof parseArgs<{ args: string[]; options: Options; strict: true; allowPositionals: true; tokens: true }>>;
   try {
-    const { values, positionals } = parseArgs({ args: joined, options, strict: true, allowPositionals: true });
-    return { values: values as Values, positionals };
+    parsed = parseArgs({ args: joined, options, strict: true, allowPositionals: true, tokens: true });
   } catch (error) {
     throw new UsageError(firstLine(error));
   }
+  // parseArgs keeps the last of a repeated option: `--period 5 --period 6` would run with 6 without a word.
+  const seen = new Set<string>();
+  for (const token of parsed.tokens) {
+    if (token.kind !== "option" || options[token.name]?.type !== "string" || options[token.name]?.multiple) continue;
+    if (seen.has(token.name)) throw new UsageError(`--${token.name} is given twice; it takes one value`);
+    seen.add(token.name);
+  }
+  return { values: parsed.values as Values, positionals: parsed.positionals };
 }
 
 // parseArgs explains at length; keep the first sentence that names the option.

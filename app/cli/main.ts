@@ -1,12 +1,14 @@
 import { pathToFileURL } from "node:url";
 import { type Command, EXIT_USAGE, type Io, UsageError } from "./command";
 import { calcCommand } from "./commands/calc";
+import { epmCommand } from "./commands/epm";
+import { evaluateCommand } from "./commands/evaluate";
 import { nfeCommand } from "./commands/nfe";
 import { pullCommand } from "./commands/pull";
 import { verifyCommand } from "./commands/verify";
 
 /** The subcommands of `bandledger`; add new ones (pull, verify, …) here. */
-export const commands: readonly Command[] = [nfeCommand, calcCommand, pullCommand, verifyCommand];
+export const commands: readonly Command[] = [nfeCommand, epmCommand, calcCommand, pullCommand, verifyCommand, evaluateCommand];
 
 function usage(): string {
   const width = Math.max(...commands.map((c) => c.name.length));

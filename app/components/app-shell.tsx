@@ -15,6 +15,7 @@ const NAV: NavItem[] = [
   { to: "/review", label: "Review", minRole: "lead" },
   { to: "/sets", label: "Sets", minRole: "reader" },
   { to: "/checks/nfe", label: "NFE check", minRole: "reader" },
+  { to: "/checks/epm", label: "Crystal check", minRole: "reader" },
   { to: "/api-docs", label: "API", minRole: "reader" },
   { to: "/admin", label: "Admin", minRole: "admin" },
 ];

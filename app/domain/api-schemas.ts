@@ -250,6 +250,93 @@ export const nfeCheckResultSchema = z
   })
   .meta({ id: "NfeCheckResult", description: "Derived numbers as decimal strings with 12 significant digits." });
 
+/** The form factors a pseudopotential check takes; antisymmetric ones only for zinc blende. */
+export const EPM_FORM_FACTOR_LIMIT = { ry: 1, ev: 13.6 } as const;
+export const EPM_LATTICE_LIMIT_ANGSTROM = { min: 2, max: 10 } as const;
+
+const formFactor = z.number().finite();
+
+// Strict throughout: a misspelt key ("S4", "stated_gamma") is refused at its field, never dropped.
+export const epmCheckBodySchema = z
+  .strictObject({
+    structure: z.enum(["diamond", "zincblende"]).meta({ description: "diamond (one kind of atom) or zincblende (two)." }),
+    latticeAngstrom: z
+      .number()
+      .min(EPM_LATTICE_LIMIT_ANGSTROM.min)
+      .max(EPM_LATTICE_LIMIT_ANGSTROM.max)
+      .meta({ description: "Cubic lattice constant a in Å.", example: 5.43 }),
+    formFactorUnit: z.enum(["ry", "ev"]).default("ry").meta({ description: "Unit of the form factors; 1 Ry = 13.605693122994 eV (CODATA 2018)." }),
+    formFactors: z
+      .strictObject({
+        S3: formFactor,
+        S8: formFactor,
+        S11: formFactor,
+        A3: formFactor.optional(),
+        A4: formFactor.optional(),
+        A11: formFactor.optional(),
+      })
+      .meta({
+        description: "V_S(|G|²) and V_A(|G|²) at |G|² = 3, 8, 11 and 3, 4, 11 in units of (2π/a)²; V(G) = V_S cos(G·τ) + i V_A sin(G·τ), τ = (a/8)(1,1,1).",
+        example: { S3: -0.21, S8: 0.04, S11: 0.08 },
+      }),
+    stated: z
+      .strictObject({
+        gammaEv: z.number().min(0).max(20).nullable().optional(),
+        xEv: z.number().min(0).max(20).nullable().optional(),
+        lEv: z.number().min(0).max(20).nullable().optional(),
+      })
+      .default({})
+      .meta({ description: "Stated gaps, from the valence maximum E4(Γ): Eg(Γ) = E5(Γ) − E4(Γ), Eg(X) = E5(X) − E4(Γ), Eg(L) = E5(L) − E4(Γ)." }),
+    toleranceEv: z.number().positive().max(5).default(0.15),
+    bands: z.boolean().default(false).meta({ description: "Also return the band structure along L–Γ–X–U|K–Γ (about 120 k-points)." }),
+  })
+  .superRefine((body, ctx) => {
+    const limit = EPM_FORM_FACTOR_LIMIT[body.formFactorUnit];
+    for (const [key, value] of Object.entries(body.formFactors)) {
+      if (value === undefined) continue;
+      if (Math.abs(value) > limit) {
+        ctx.addIssue({ code: "custom", path: ["formFactors", key], message: `A form factor lies between −${limit} and ${limit} ${body.formFactorUnit === "ry" ? "Ry" : "eV"}.` });
+      }
+      if (body.structure === "diamond" && key.startsWith("A")) {
+        ctx.addIssue({ code: "custom", path: ["formFactors", key], message: "Antisymmetric form factors need the zinc-blende structure (diamond has one kind of atom)." });
+      }
+    }
+  })
+  .meta({ id: "EpmCheckRequest" });
+
+const epmGap = z.object({ gapEv: decimal, statedEv: decimal.nullable(), residualEv: decimal.nullable(), verdict: z.enum(["pass", "warn", "fail", "none"]) });
+
+export const epmCheckResultSchema = z
+  .object({
+    structure: z.enum(["diamond", "zincblende"]),
+    latticeAngstrom: decimal,
+    formFactorsEv: z.record(z.string(), decimal).meta({ description: "The form factors used, in eV." }),
+    gamma: epmGap,
+    x: epmGap.extend({
+      gammaXMinimum: z.object({ gapEv: decimal, fraction: decimal }).meta({ description: "The lowest conduction energy along Γ–X and where it lies (fraction of Γ–X)." }),
+    }),
+    l: epmGap,
+    fundamental: z.object({ gapEv: decimal, valley: z.enum(["Γ", "X", "L", "Δ"]) }),
+    planeWaves: z.number().int(),
+    maxSquare: z.number().int().meta({ description: "The basis: every G with |G|² ≤ maxSquare, in units of (2π/a)²." }),
+    converged: z.boolean(),
+    convergenceEv: decimal,
+    toleranceEv: decimal,
+    verdict: z.enum(["pass", "warn", "fail", "none"]),
+    notes: z.array(z.string()),
+    bands: z
+      .object({
+        labels: z.array(z.object({ label: z.string(), distance: z.number() })),
+        distance: z.array(z.number()).meta({ description: "Distance along the path in units of 2π/a." }),
+        energiesEv: z.array(z.array(z.number())).meta({ description: "energiesEv[b][i]: band b + 1 at distance[i], from the valence maximum, rounded to 0.1 meV (plotting data)." }),
+        planeWaves: z.number().int(),
+        deviationEv: z.number().meta({ description: "How far this basis puts the gaps at Γ, X, L from the converged ones." }),
+      })
+      .nullable(),
+    codataEdition: z.string(),
+  })
+  .meta({ id: "EpmCheckResult", description: "Derived numbers as decimal strings with 12 significant digits; the band arrays are plotting data." });
+
 const SLUG = /^[a-z0-9]+(?:-[a-z0-9]+)*$/;
 
 /** A new set as typed on /sets/new. */
@@ -275,3 +362,67 @@ export function slugFromName(name: string): string {
     .slice(0, 80)
     .replace(/-+$/, "");
 }
+
+export const evaluateQuerySchema = z.object({
+  temperature: z.string().meta({ description: "Temperature in K, 0 to 2000.", example: "77" }),
+  material: z.string().optional().meta({ description: "A material key of the release; without it, every material of the release.", example: "AlGaAs" }),
+  x: z.string().optional().meta({ description: "Composition of an alloy, 0 to 1: the fraction of end member A (AlAs in Al(x)Ga(1-x)As). Needed with an alloy.", example: "0.3" }),
+  substrate: z.string().optional().meta({ description: "A material of the release with a lattice constant at 300 K: adds the lattice mismatch (and, for an alloy, the lattice-matched composition).", example: "GaAs" }),
+  missingBowing: z.enum(["name", "linear"]).optional().meta({ description: "\"name\" (default): a missing bowing parameter is named under missing; \"linear\": interpolate linearly instead, and say so." }),
+  format: z.enum(["json", "csv"]).optional().meta({ description: "json (default) or csv (a download, with the release hash in its preamble)." }),
+});
+
+const evaluatedInput = z.object({
+  material: z.string().nullable().meta({ description: "Whose value, when not the evaluated material's own (an end member, the substrate)." }),
+  symbol: z.string(),
+  value: decimal,
+  unit: z.string(),
+  uncertainty: decimal.nullable().meta({ description: "The revision's standard uncertainty; null when it states none (\"± not stated\", never zero)." }),
+  uncertaintyStated: z.boolean(),
+  sensitivity: z.string().meta({ description: "Sensitivity coefficient ∂y/∂x_i." }),
+  contribution: z.string().nullable().meta({ description: "|∂y/∂x_i|·u(x_i) in the unit of the result; null without a stated uncertainty." }),
+  recordId: z.number().int().nullable(),
+  revisionId: z.number().int().nullable().meta({ description: "The pinned revision." }),
+  source: z.string().nullable(),
+});
+
+export const evaluatedValueSchema = z
+  .object({
+    id: z.string().meta({ description: "eg-G, eg-X, eg-L, lattice-a, kane-me, mismatch or lattice-match-x." }),
+    label: z.string(),
+    value: z.string().meta({ description: "Decimal string, 12 significant digits." }),
+    unit: z.string(),
+    standardUncertainty: z.string().nullable().meta({ description: "Combined standard uncertainty by the GUM (first order); null when no input that moves the value states one." }),
+    uncertaintyStatus: z.enum(["complete", "partial", "not-stated"]),
+    uncertaintyNotStated: z.array(z.string()).meta({ description: "The inputs that move the value but state no uncertainty." }),
+    formula: z.string(),
+    reference: z.string(),
+    warnings: z.array(z.string()),
+    stated: z.object({ value: decimal, uncertainty: decimal.nullable(), recordId: z.number().int().nullable(), revisionId: z.number().int().nullable() }).nullable()
+      .meta({ description: "A value the release states at exactly these conditions, beside the derived one." }),
+    inputs: z.array(evaluatedInput).meta({ description: "The uncertainty budget: every pinned revision the value came from." }),
+  })
+  .meta({ id: "EvaluatedValue" });
+
+export const evaluationSchema = z
+  .object({
+    schema: z.literal("bandledger.evaluation"),
+    schemaVersion: z.literal(1),
+    release: z.object({ sha256, set: z.string(), setName: z.string(), number: z.number().int(), codataEdition: z.string(), softwareVersion: z.string() })
+      .meta({ description: "The release the numbers were computed from." }),
+    evaluatedWith: z.object({ bandledgerVersion: z.string(), codataEdition: z.string(), uncertaintyMethod: z.string() }),
+    conditions: z.object({ temperatureK: decimal, material: z.string().nullable(), x: decimal.nullable(), substrate: z.string().nullable(), missingBowing: z.enum(["name", "linear"]) }),
+    caution: z.string(),
+    materials: z.array(z.object({
+      key: z.string(),
+      name: z.string(),
+      formula: z.string(),
+      kind: z.enum(["element", "binary", "alloy"]),
+      composition: decimal.nullable(),
+      endMembers: z.object({ a: z.string(), b: z.string() }).nullable(),
+      substrate: z.string().nullable(),
+      values: z.array(evaluatedValueSchema),
+      missing: z.array(z.string()).meta({ description: "What could not be derived from the release, and why." }),
+    })),
+  })
+  .meta({ id: "Evaluation", description: "A release evaluated at a temperature (and composition, substrate). The same conditions give the same bytes." });

@@ -111,6 +111,21 @@ describe("checking a proposal CSV", () => {
     expect(r.rows.map((x) => x.row)).toEqual([2, 3, 4]);
   });
 
+  it("carries pseudopotential form factors in Ry or eV (Cohen & Bergstresser 1966, Phys. Rev. 141, 789, GaAs, from memory), and refuses one with a temperature", async () => {
+    const CB = "10.1103/PhysRev.141.789,Band structures and pseudopotential form factors for fourteen semiconductors";
+    const rows = [
+      `GaAs,ff_vs3,,,,-0.23,Ry,,fitted,${CB},Table I`,
+      `GaAs,ff_va3,,,,0.952398518609580,eV,,fitted,${CB},Table I`,
+      `GaAs,ff_va11,,,,10,mRy,,fitted,${CB},Table I`,
+    ];
+    const r = await checkProposalCsv(enc([HEADER, ...rows].join("\n")), catalogue);
+    expect(r.rows.flatMap((x) => x.errors.map(describeCsvIssue))).toEqual([]);
+    // 1 Ry = 13.605693122994 eV [CODATA18], converted exactly.
+    expect(r.rows.map((x) => x.proposal?.prepared?.value)).toEqual(["-3.12930941828862", "0.952398518609580", "0.13605693122994"]);
+    const warm = await checkProposalCsv(enc([HEADER, `GaAs,ff_vs8,300,,,0.01,Ry,,fitted,${CB},Table I`].join("\n")), catalogue);
+    expect(warm.rows.flatMap((x) => x.errors.map(describeCsvIssue)).join(" ")).toMatch(/Row 2, column “temperature_k”: .*does not depend on temperature/);
+  });
+
   it("names the row and the column of every error", async () => {
     const rows = [
       `GaAs,lattice_a,300,,,5.65325,furlong,,compilation,10.1063/1.1368156,${TITLE},GaAs table`,

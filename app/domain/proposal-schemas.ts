@@ -321,31 +321,6 @@ export function guessSourceKind(text: string): SourceKind {
   return "report";
 }
 
-/** One revision as the side-by-side view shows it: the record's current one, or the one a proposal would add. */
-export type RevisionCardData = {
-  revisionId: number | null;
-  seq: number | null;
-  retirement: boolean;
-  value: string | null;
-  unit: string;
-  inputValue: string | null;
-  inputUnit: string | null;
-  significantDigits: number | null;
-  uncertainty: string | null;
-  method: string | null;
-  source: { kind: SourceKind; label: string; title: string; reference: string; doi: string | null; reportNumber: string | null } | null;
-  locator: string | null;
-  notes: string | null;
-  potentialCoefficients: { n: number; valueEv: string }[] | null;
-  periodAngstrom: string | null;
-  validFromK: string | null;
-  validToK: string | null;
-  proposedBy: string | null;
-  approvedBy: string | null;
-  proposedAt: string | null;
-  approvedAt: string | null;
-};
-
 /** A row of the review queue. */
 export type ReviewQueueRow = {
   id: number;

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { exactDecimal } from "./exact-decimal";
+import { RYDBERG_IN_EV } from "./units";
 import { QUANTITIES, checkRange, conditionKey, describeTemperature, quantityByKey, quantityRow, validateConditions } from "./quantities";
 
 const q = (key: string) => {
@@ -17,9 +18,13 @@ describe("the quantity catalogue", () => {
     expect(new Set(QUANTITIES.map((x) => x.key)).size).toBe(QUANTITIES.length);
   });
 
-  it.each(QUANTITIES.map((x) => [x.key, x] as const))("%s: canonical unit accepted at factor 1, exact power-of-ten factors, min below max", (_key, x) => {
+  // Exact power-of-ten factors, except Ry and mRy of the form factors: 1 Ry = 13.605693122994 eV as CODATA 2018 prints it.
+  it.each(QUANTITIES.map((x) => [x.key, x] as const))("%s: canonical unit accepted at factor 1, exact power-of-ten factors (Ry: R∞hc), min below max", (_key, x) => {
     expect(x.acceptedUnits.find((u) => u.unit === x.canonicalUnit)?.factor).toBe("1");
-    for (const u of x.acceptedUnits) expect(u.factor).toMatch(/^(?:1(?:0+)?|0\.0*1)$/);
+    for (const u of x.acceptedUnits) {
+      if (u.unit === "Ry" || u.unit === "mRy") expect(exactDecimal(u.factor).decimal.eq(exactDecimal(RYDBERG_IN_EV).decimal.times(u.unit === "Ry" ? 1 : 0.001))).toBe(true);
+      else expect(u.factor).toMatch(/^(?:1(?:0+)?|0\.0*1)$/);
+    }
     expect(exactDecimal(x.rangeMin).decimal.lt(exactDecimal(x.rangeMax).decimal)).toBe(true);
   });
 
@@ -27,6 +32,24 @@ describe("the quantity catalogue", () => {
     expect(quantityRow(q("eg"))).toMatchObject({ dependsOnTemperature: true, dependsOnValley: true, dependsOnComposition: true, canonicalUnit: "eV" });
     expect(quantityRow(q("delta_so"))).toMatchObject({ dependsOnTemperature: false, dependsOnValley: false });
     expect(quantityRow(q("eg_bowing_c0"))).toMatchObject({ dependsOnTemperature: false, dependsOnValley: true, dependsOnComposition: false });
+  });
+});
+
+describe("the form factors", () => {
+  it("are six record quantities V_S(3), V_S(8), V_S(11), V_A(3), V_A(4), V_A(11) in eV, accepting Ry, within ±1 Ry, without temperature, valley or composition", () => {
+    const keys = ["ff_vs3", "ff_vs8", "ff_vs11", "ff_va3", "ff_va4", "ff_va11"];
+    expect(keys.map((k) => q(k).symbol)).toEqual(["V_S(3)", "V_S(8)", "V_S(11)", "V_A(3)", "V_A(4)", "V_A(11)"]);
+    for (const k of keys) {
+      expect(q(k)).toMatchObject({ canonicalUnit: "eV", temperature: "independent", valleys: [], composition: "none", rangeMin: "-13.6", rangeMax: "13.6" });
+      expect(q(k).storedWith).toBeUndefined();
+      expect(q(k).acceptedUnits.map((u) => u.unit)).toEqual(["eV", "meV", "Ry", "mRy"]);
+    }
+    // Cohen & Bergstresser (1966) give V_S(3) = −0.21 Ry for silicon (from memory): plausible; −0.21 eV typed as Ry by mistake is too.
+    expect(checkRange(q("ff_vs3"), "-2.85719555582874")).toBeNull();
+    expect(checkRange(q("ff_vs3"), "-21")).toMatch(/outside the plausible range/);
+    expect(q("ff_vs3").checkTolerance).toBe("0.15");
+    expect(validateConditions(q("ff_va3"), "binary", {}).ok).toBe(true);
+    expect(validateConditions(q("ff_va3"), "binary", { temperatureK: "300" }).ok).toBe(false);
   });
 });
 

@@ -1,6 +1,6 @@
 import { exactDecimal, normalisedDecimalKey, parseExactDecimal } from "./exact-decimal";
 import {
-  DIMENSIONLESS, ENERGY_EV, ENERGY_PER_KELVIN_MEV, KELVIN, LENGTH_ANGSTROM, LENGTH_PER_KELVIN_ANGSTROM, MASS_M0, displayUnit,
+  DIMENSIONLESS, ENERGY_EV, ENERGY_PER_KELVIN_MEV, FORM_FACTOR_EV, KELVIN, LENGTH_ANGSTROM, LENGTH_PER_KELVIN_ANGSTROM, MASS_M0, displayUnit,
   type AcceptedUnit,
 } from "./units";
 
@@ -42,6 +42,29 @@ export type QuantityDefinition = {
 };
 
 const ALL_VALLEYS = VALLEY_KEYS;
+
+// Pseudopotential form factors of a diamond or zinc-blende crystal, one record each; the number is |G|² in units of
+// (2π/a)². Canonical eV, so the check needs no conversion; a value typed in Ry keeps its input and is stored exactly
+// (× 13.605693122994). The range is ±1 Ry: published local form factors lie within a few tenths of a rydberg.
+const FORM_FACTOR_TEXT =
+  "of the local pseudopotential V(G) = V_S(|G|²) cos(G·τ) + i V_A(|G|²) sin(G·τ) of a diamond or zinc-blende crystal, τ = (a/8)(1,1,1), |G|² in units of (2π/a)². Often stated in Ry (1 Ry = 13.605693122994 eV). With the other form factors and the lattice constant a, the pseudopotential check computes the gaps at Γ, X and L.";
+const formFactor = (key: string, kind: "S" | "A", square: number, sortOrder: number, checkTolerance?: string): QuantityDefinition => ({
+  key,
+  symbol: `V_${kind}(${square})`,
+  name: `${kind === "S" ? "Symmetric" : "Antisymmetric"} form factor V_${kind}(${square})`,
+  canonicalUnit: "eV",
+  acceptedUnits: FORM_FACTOR_EV,
+  rangeMin: "-13.6",
+  rangeMax: "13.6",
+  description: `${kind === "S" ? "Symmetric" : "Antisymmetric (zinc blende only: zero for diamond)"} form factor at |G|² = ${square} ${FORM_FACTOR_TEXT}`,
+  temperature: "independent",
+  valleys: [],
+  composition: "none",
+  fitRange: false,
+  sortOrder,
+  ...(checkTolerance ? { checkTolerance } : {}),
+});
+
 
 // One gap quantity with the valley as a condition of the record (not eg_gamma/eg_x/eg_l): Varshni α, β and the
 // bowing parameters are per valley too, so every valley-dependent quantity filters and groups the same way.
@@ -131,6 +154,13 @@ export const QUANTITIES: readonly QuantityDefinition[] = [
     description: "Coefficient U_n of U(x) = Σ U_n e^{inGx}, G = 2π/a, stated with a band-gap revision (with the period a) for the nearly-free-electron check.",
     temperature: "independent", valleys: [], composition: "none", fitRange: false, storedWith: "eg", sortOrder: 90,
   },
+  // V_S(3) carries the pseudopotential check's tolerance (eV): a three-form-factor model is fitted to a few transitions.
+  formFactor("ff_vs3", "S", 3, 100, "0.15"),
+  formFactor("ff_vs8", "S", 8, 101),
+  formFactor("ff_vs11", "S", 11, 102),
+  formFactor("ff_va3", "A", 3, 103),
+  formFactor("ff_va4", "A", 4, 104),
+  formFactor("ff_va11", "A", 11, 105),
 ];
 
 const BY_KEY = new Map(QUANTITIES.map((q) => [q.key, q]));

@@ -32,6 +32,7 @@ describe("prepareRevision", () => {
     ["eg", { value: "1.519", unit: "eV", potentialCoefficients: [{ n: 1, value: "0.7" }, { n: 1, value: "0.8" }], periodAngstrom: "5.65" }, "potentialCoefficients.1", /twice/],
     ["eg", { value: "1.519", unit: "eV", potentialCoefficients: [{ n: 1, value: "40" }], periodAngstrom: "5.65" }, "potentialCoefficients.0", /plausible range/],
     ["lattice_a", { value: "5.65325", unit: "Å", potentialCoefficients: [{ n: 1, value: "0.7" }], periodAngstrom: "5.65" }, "potentialCoefficients", /band gap/],
+    ["eg", { value: "1.519", unit: "eV", potentialCoefficients: [{ n: 1, value: "0.7" }], periodAngstrom: "0.000001" }, "periodAngstrom", /below 0\.0123 Å .* double precision/],
     ["delta_so", { value: "0.341", unit: "eV", validFromK: "0" }, "validFromK", /no fit range/],
     ["varshni_beta", { value: "204", unit: "K", validFromK: "400", validToK: "4" }, "validToK", /ends below/],
     ["eg", { value: "", unit: "eV" }, "value", /Enter the value/],

@@ -1,6 +1,8 @@
 import { z } from "zod";
 import { parseDoi, parseReportNumber } from "./citations";
 import { decimalColumnValue, parseExactDecimal, scaleExact } from "./exact-decimal";
+import { smallestResolvablePeriodAngstrom } from "./physics/nfe";
+import type { RevisionDetails } from "./revision-view";
 import { checkRange, quantityByKey, type QuantityDefinition } from "./quantities";
 import { convertToCanonical, findAcceptedUnit } from "./units";
 
@@ -56,6 +58,9 @@ export function registryViewSearch(view: RegistryView, changes: Partial<Registry
   return s ? `?${s}` : "";
 }
 
+/** The nearly-free-electron check (band mass m0, gap 1) cannot resolve a gap on a shorter period, rounded up to 3 digits. */
+const SMALLEST_PERIOD_ANGSTROM = Number(smallestResolvablePeriodAngstrom(1, 1).toPrecision(3));
+
 export const positiveId = z.coerce.number().int().positive().max(2_147_483_647);
 
 /** Two revisions of one record to show side by side: ?cmp=<record>&from=<revision>&to=<revision>. */
@@ -85,21 +90,15 @@ export const revisionInputSchema = z.object({
 });
 export type RevisionInput = z.input<typeof revisionInputSchema>;
 
-export type PreparedRevision = {
+/** A revision as it will be stored: the value converted exactly, and the details every view of a revision shows. */
+export type PreparedRevision = RevisionDetails & {
   value: string;
   valueNumeric: string;
   significantDigits: number;
   inputValue: string;
   inputUnit: string;
-  uncertainty: string | null;
   method: Method;
   sourceId: number;
-  locator: string | null;
-  notes: string | null;
-  potentialCoefficients: { n: number; valueEv: string }[] | null;
-  periodAngstrom: string | null;
-  validFromK: string | null;
-  validToK: string | null;
 };
 
 export type RevisionFieldErrors = Partial<Record<keyof RevisionInput | `potentialCoefficients.${number}`, string>>;
@@ -168,6 +167,9 @@ export function prepareRevision(q: QuantityDefinition, raw: unknown): { ok: true
     if (!input.potentialCoefficients?.length) errors.periodAngstrom = "A period is stated only with potential coefficients.";
     else if (!p.ok) errors.periodAngstrom = p.message;
     else if (p.value.decimal.lte(0) || p.value.decimal.gt(100)) errors.periodAngstrom = "The period must lie between 0 and 100 Å.";
+    else if (p.value.decimal.lt(SMALLEST_PERIOD_ANGSTROM)) {
+      errors.periodAngstrom = `A period below ${SMALLEST_PERIOD_ANGSTROM} Å puts the gap at energies too large for double precision to resolve (is it in Å?).`;
+    }
     else periodAngstrom = p.value.canonical;
   }
   let validFromK: string | null = null;

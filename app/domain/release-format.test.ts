@@ -140,7 +140,8 @@ describe("verifyReleaseText", () => {
       }
       expect(checked).toBe(bytes.length);
     }
-  });
+    // One verification per byte of both files: seconds of work, more on a machine shared with a full test run.
+  }, 60_000);
 
   it("refuses a JSON file with its keys re-ordered or re-indented, though the content is the same", async () => {
     const out = await serialiseRelease(content());

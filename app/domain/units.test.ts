@@ -2,7 +2,7 @@ import { all, create } from "mathjs";
 import { describe, expect, it } from "vitest";
 import { exactDecimal } from "./exact-decimal";
 import {
-  DIMENSIONLESS, ENERGY_EV, ENERGY_PER_KELVIN_MEV, LENGTH_ANGSTROM, LENGTH_PER_KELVIN_ANGSTROM, MASS_M0, convertToCanonical, displayUnit,
+  DIMENSIONLESS, ENERGY_EV, ENERGY_PER_KELVIN_MEV, FORM_FACTOR_EV, LENGTH_ANGSTROM, RYDBERG_IN_EV, LENGTH_PER_KELVIN_ANGSTROM, MASS_M0, convertToCanonical, displayUnit,
   normaliseUnit, type AcceptedUnit,
 } from "./units";
 
@@ -97,6 +97,21 @@ describe("convertToCanonical", () => {
   it("names the accepted units when a unit is refused", () => {
     const r = convertToCanonical("1", "J", ENERGY_EV);
     expect(r.ok ? "" : r.message).toMatch(/eV, meV, µeV/);
+  });
+});
+
+describe("form factors in Ry [CODATA18]", () => {
+  it("converts Ry to eV exactly with 1 Ry = 13.605693122994 eV, the value CODATA 2018 prints, which the physics derives too", async () => {
+    const { RYDBERG_EV } = await import("./physics");
+    expect(Math.abs(Number(RYDBERG_IN_EV) - RYDBERG_EV)).toBeLessThan(1e-12);
+    const ry = convertToCanonical("-0.21", "Ry", FORM_FACTOR_EV);
+    expect(ry.ok && ry.value.canonical).toBe("-2.85719555582874");
+    expect(ry.ok && ry.inputUnit).toBe("Ry");
+    const mry = convertToCanonical("-210", "mRy", FORM_FACTOR_EV);
+    expect(mry.ok && mry.value.decimal.eq(exactDecimal("-2.85719555582874").decimal)).toBe(true);
+    const ev = convertToCanonical("-2.857", "eV", FORM_FACTOR_EV);
+    expect(ev.ok && ev.value.canonical).toBe("-2.857");
+    expect(convertToCanonical("-0.21", "Rydberg", FORM_FACTOR_EV)).toMatchObject({ ok: false, field: "unit" });
   });
 });
 

@@ -13,6 +13,14 @@ export const ENERGY_PER_KELVIN_MEV: AcceptedUnit[] = [
   { unit: "eV/K", factor: "1000" },
   { unit: "µeV/K", factor: "0.001" },
 ];
+/** Form factors: eV, or Ry as most tables give them; 1 Ry = R∞hc = 13.605693122994 eV exactly as CODATA 2018 prints it. */
+export const RYDBERG_IN_EV = "13.605693122994";
+export const FORM_FACTOR_EV: AcceptedUnit[] = [
+  { unit: "eV", factor: "1" },
+  { unit: "meV", factor: "0.001" },
+  { unit: "Ry", factor: RYDBERG_IN_EV },
+  { unit: "mRy", factor: "0.013605693122994" },
+];
 export const KELVIN: AcceptedUnit[] = [{ unit: "K", factor: "1" }];
 export const LENGTH_ANGSTROM: AcceptedUnit[] = [
   { unit: "Å", factor: "1" },

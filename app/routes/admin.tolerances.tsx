@@ -40,7 +40,7 @@ export default function AdminTolerances({ loaderData, actionData }: Route.Compon
         <h1 id="tolerances-title" className="mt-1 text-2xl font-semibold tracking-tight">Check tolerances</h1>
         <p className="mt-2 max-w-3xl text-sm text-muted">
           How far a stated value may stand from what the physics implies and still pass. A check passes within its tolerance; the
-          nearly-free-electron, Kane and bowing checks warn up to three times it and fail beyond, the Varshni check fails beyond it.
+          nearly-free-electron, Kane, bowing and pseudopotential checks warn up to three times it and fail beyond, the Varshni check fails beyond it.
           Every change is written to the audit log.
         </p>
       </div>

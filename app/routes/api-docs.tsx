@@ -30,14 +30,16 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 const NFE_EXAMPLE = '{"periodAngstrom":5.65325,"coefficients":[{"n":1,"valueEv":0.1}],"statedGapEv":0.2}';
+const EPM_EXAMPLE = '{"structure":"diamond","latticeAngstrom":5.43,"formFactors":{"S3":-0.21,"S8":0.04,"S11":0.08},"stated":{"gammaEv":3.4}}';
 
 function curlFor(e: Endpoint, baseUrl: string): string {
   const path = e.path.replace(/\{(\w+)\}/g, (_, name: string) => EXAMPLE_PARAMS[name] ?? name);
-  const query = e.path.endsWith("/download") ? "?format=csv" : e.path.endsWith("/compare") ? "?from=2&to=3" : e.path.endsWith("/records") ? "?material=GaAs&quantity=eg&limit=50" : "";
+  const query = e.path.endsWith("/download") ? "?format=csv" : e.path.endsWith("/evaluate") ? "?temperature=77&material=AlGaAs&x=0.3&substrate=GaAs" : e.path.endsWith("/compare") ? "?from=2&to=3" : e.path.endsWith("/records") ? "?material=GaAs&quantity=eg&limit=50" : "";
   const auth = e.path.endsWith("openapi.json") ? "" : ' -H "Authorization: Bearer $BANDLEDGER_TOKEN"';
   if (e.method === "POST" && e.path.endsWith("/nfe")) return `curl -s${auth} -H "Content-Type: application/json" -d '${NFE_EXAMPLE}' ${baseUrl}${path}`;
+  if (e.method === "POST" && e.path.endsWith("/epm")) return `curl -s${auth} -H "Content-Type: application/json" -d '${EPM_EXAMPLE}' ${baseUrl}${path}`;
   if (e.method === "POST") return `# from a signed-in browser page only; tokens are read-only`;
-  const out = e.path.endsWith("/download") ? " -o hemt-baseline-r3.csv" : "";
+  const out = e.path.endsWith("/download") ? " --compressed -o hemt-baseline-r3.csv" : "";
   return `curl -sf${auth}${out} "${baseUrl}${path}${query}"`;
 }
 

@@ -4,7 +4,7 @@ import type { Route } from "./+types/materials.$key";
 import { db } from "~/.server/db/client";
 import { loadDerivedValues } from "~/.server/derived";
 import { requireUser } from "~/.server/permissions";
-import { loadMaterialPage } from "~/.server/registry/queries";
+import { loadMaterialPage } from "~/.server/registry/material-page";
 import { DerivedValues } from "~/components/derived";
 import { MaterialOverview } from "~/components/registry/material-overview";
 import { compareSchema } from "~/domain/registry-schemas";

@@ -1,7 +1,7 @@
 import type { Route } from "./+types/materials";
 import { db } from "~/.server/db/client";
 import { requireUser } from "~/.server/permissions";
-import { listMaterialsByFamily } from "~/.server/registry/queries";
+import { listMaterialsByFamily } from "~/.server/registry/material-page";
 
 export const meta: Route.MetaFunction = () => [{ title: "Materials · Bandledger" }];
 

@@ -142,7 +142,8 @@ export default function ProposalPage({ loaderData: p, actionData }: Route.Compon
           <p className="mt-1">
             It was based on <span className="figure font-mono">{p.stale.baseText}</span>; the record now holds{" "}
             <span className="figure font-mono" data-testid="stale-current">{p.stale.currentText}</span>
-            {p.stale.currentRevisionId ? ` (revision ${p.stale.currentRevisionId})` : ""}. Nothing is overwritten silently: it cannot be approved until its author rebases it.
+            {p.stale.currentRevisionId ? ` (revision ${p.stale.currentRevisionId})` : ""}. Nothing is overwritten silently: it cannot be approved until its author rebases it. A lead may still
+            reject it as it stands, with a reason, without asking for a rebase first.
           </p>
           {p.can.rebase ? (
             <Form method="post" className="mt-3">
@@ -184,7 +185,7 @@ export default function ProposalPage({ loaderData: p, actionData }: Route.Compon
                 <input type="hidden" name="version" value={p.version} />
                 <p className="text-sm text-muted">Approving makes the proposed value the record's current one; the old revision stays in its history.</p>
                 <button type="submit" className="btn-primary" disabled={busy || !p.can.approve}>Approve</button>
-                {!p.can.approve ? <p className="text-sm text-warn">Stale: its author must rebase it first.</p> : null}
+                {!p.can.approve ? <p className="text-sm text-warn" data-testid="approve-blocked">Stale: approving waits until its author rebases it. Rejecting is open now.</p> : null}
               </Form>
               <Form method="post" className="space-y-2" noValidate>
                 <input type="hidden" name="intent" value="reject" />

@@ -3,7 +3,7 @@ import type { Route } from "./+types/records.$id";
 import { db } from "~/.server/db/client";
 import { checkReportForRecord } from "~/.server/checks";
 import { hasRole, requireUser } from "~/.server/permissions";
-import { loadRecord } from "~/.server/registry/queries";
+import { loadRecord } from "~/.server/registry/record-page";
 import { CheckReportView } from "~/components/checks";
 import { conditionsLabel, StateBadge, ValueWithUnit } from "~/components/registry/format";
 import { SimulationCaution } from "~/components/registry/material-overview";

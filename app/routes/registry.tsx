@@ -1,7 +1,7 @@
 import type { Route } from "./+types/registry";
 import { db } from "~/.server/db/client";
 import { requireUser } from "~/.server/permissions";
-import { listRegistry, registryFilterOptions } from "~/.server/registry/queries";
+import { listRegistry, registryFilterOptions, registryTablePage } from "~/.server/registry/listing";
 import { Pager } from "~/components/registry/pager";
 import { RegistryFilters } from "~/components/registry/registry-filters";
 import { RegistryTable } from "~/components/registry/registry-table";
@@ -13,7 +13,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   const view = parseRegistryView(new URL(request.url).searchParams);
   await requireUser(request);
   const [page, options] = await Promise.all([listRegistry(db(), view), registryFilterOptions(db(), { family: view.family })]);
-  return { view: { ...view, page: page.page }, page, options };
+  return { view: { ...view, page: page.page }, page: registryTablePage(page), options };
 }
 
 export default function Registry({ loaderData }: Route.ComponentProps) {
@@ -45,7 +45,7 @@ export default function Registry({ loaderData }: Route.ComponentProps) {
         </section>
       ) : (
         <>
-          <RegistryTable rows={page.rows} view={view} />
+          <RegistryTable page={page} view={view} />
           <Pager page={page.page} pageCount={page.pageCount} total={page.total} size={page.size} href={(p) => `/registry${registryViewSearch(view, { page: p })}`} />
         </>
       )}

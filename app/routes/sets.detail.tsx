@@ -3,7 +3,7 @@ import { z } from "zod";
 import type { Route } from "./+types/sets.detail";
 import { db } from "~/.server/db/client";
 import { hasRole, requireUser } from "~/.server/permissions";
-import { registryOptions } from "~/.server/registry/queries";
+import { registryOptions } from "~/.server/registry/listing";
 import { redirectWithFlash } from "~/.server/session";
 import { isSetError } from "~/.server/sets/errors";
 import { orSetErrorPage } from "~/.server/sets/http";

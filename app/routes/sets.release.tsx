@@ -1,8 +1,10 @@
 import { data } from "react-router";
 import type { Route } from "./+types/sets.release";
 import { requireUser } from "~/.server/permissions";
+import { loadReleaseEvaluation } from "~/.server/sets/evaluate";
 import { orSetErrorPage } from "~/.server/sets/http";
 import { itemsOfRelease, requireRelease, requireSet } from "~/.server/sets/queries";
+import { ReleaseEvaluation } from "~/components/derived";
 import { conditionText, SourceText, ValueText } from "~/components/release-values";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: data ? `${data.set.name}, release ${data.release.number} · Bandledger` : "Release · Bandledger" }];
@@ -14,12 +16,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     const set = await requireSet(params.slug);
     const stored = await requireRelease(set, Number(params.number));
     const { canonicalJson: _json, csv: _csv, ...release } = stored;
-    return { set: { slug: set.slug, name: set.name, purpose: set.purpose }, release, items: itemsOfRelease(stored) };
+    const evaluation = await loadReleaseEvaluation(set.slug, stored.number, new URL(request.url).searchParams);
+    return { set: { slug: set.slug, name: set.name, purpose: set.purpose }, release, items: itemsOfRelease(stored), evaluation };
   });
 }
 
 export default function Release({ loaderData }: Route.ComponentProps) {
-  const { set, release, items } = loaderData;
+  const { set, release, items, evaluation } = loaderData;
   const rows: [string, React.ReactNode][] = [
     ["Frozen", `${release.frozenAt.replace("T", " ").slice(0, 19)} UTC by ${release.frozenBy}`],
     ["Values", String(release.itemCount)],
@@ -53,6 +56,7 @@ export default function Release({ loaderData }: Route.ComponentProps) {
       <p className="text-sm text-muted">
         Pull and verify it from a pipeline: <code className="font-mono">npm run --silent bandledger -- pull {set.slug}@{release.number} --out {set.slug}-r{release.number}.json</code>
       </p>
+      <ReleaseEvaluation page={evaluation} apiPath={`/api/v1/sets/${set.slug}/releases/${release.number}/evaluate`} refText={`${set.slug}@${release.number}`} />
       <div className="card overflow-x-auto">
         <table className="w-full text-sm">
           <thead className="border-b border-rule text-left text-xs text-muted uppercase">

@@ -3,7 +3,7 @@ import { z } from "zod";
 import type { Route } from "./+types/sources.$id";
 import { db } from "~/.server/db/client";
 import { requireUser } from "~/.server/permissions";
-import { loadSource } from "~/.server/registry/queries";
+import { loadSource } from "~/.server/registry/source-pages";
 import { conditionsLabel, StateBadge, ValueWithUnit } from "~/components/registry/format";
 import { Pager } from "~/components/registry/pager";
 import { SourceReference } from "~/components/registry/source-link";

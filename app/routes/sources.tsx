@@ -2,7 +2,7 @@ import { z } from "zod";
 import type { Route } from "./+types/sources";
 import { db } from "~/.server/db/client";
 import { requireUser } from "~/.server/permissions";
-import { listSources } from "~/.server/registry/queries";
+import { listSources } from "~/.server/registry/source-pages";
 import { conditionsLabel, ValueWithUnit } from "~/components/registry/format";
 import { Pager } from "~/components/registry/pager";
 import { SourceReference } from "~/components/registry/source-link";

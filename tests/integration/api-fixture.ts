@@ -20,7 +20,8 @@ export type DemoServer = {
   userId: (person: string) => Promise<number>;
   token: (person: string) => Promise<string>;
   cookie: (person: string) => Promise<string>;
-  restart: () => Promise<void>;
+  /** Stops the app and starts it again on the same port; `workers` changes the number of worker processes. */
+  restart: (options?: { workers?: number }) => Promise<void>;
   close: () => Promise<void>;
 };
 
@@ -50,10 +51,10 @@ export async function startDemoServer(label: string, extraEnv: Record<string, st
     async cookie(person) {
       return `__bandledger=${await sessionCookieValue(await demo.userId(person), t.url)}`;
     },
-    async restart() {
+    async restart(options = {}) {
       const port = demo.server.port;
       await demo.server.stop();
-      demo.server = await startAppServer({ databaseUrl: t.url, smtpPort: sink.port, mailboxDir, extraEnv, port });
+      demo.server = await startAppServer({ databaseUrl: t.url, smtpPort: sink.port, mailboxDir, extraEnv, port, workers: options.workers });
     },
     async close() {
       await demo.server.stop();

@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { z } from "zod";
 import { apiTokens, auditLog, parameterSets, users } from "~/.server/db/schema";
 import {
-  apiErrorSchema, comparisonSchema, materialListSchema, nfeCheckResultSchema, quantityListSchema, recordHistorySchema, recordPageSchema,
+  apiErrorSchema, comparisonSchema, epmCheckResultSchema, materialListSchema, nfeCheckResultSchema, quantityListSchema, recordHistorySchema, recordPageSchema,
   releaseDetailSchema, setDetailSchema, setListSchema,
 } from "~/domain/api-schemas";
 import { verifyReleaseText } from "~/domain/release-format";
@@ -13,7 +13,9 @@ import { startDemoServer, type DemoServer } from "./api-fixture";
 
 // External checks of the nearly-free-electron endpoint: [Kittel] C. Kittel, Introduction to Solid State Physics,
 // 8th ed., ch. 7 (two-band gap 2|U_G|); [AS] Abramowitz & Stegun, Table 20.1, Mathieu characteristic values for
-// q = 5: a1 = 1.85818754, b1 = -5.79008060; [CODATA18] ħ²/2m_e = 3.80998212 eV·Å².
+// q = 5: a1 = 1.85818754, b1 = -5.79008060; [CODATA18] ħ²/2m_e = 3.80998212 eV·Å², 1 Ry = 13.605693122994 eV.
+// The pseudopotential endpoint: [CB66] Cohen & Bergstresser, Phys. Rev. 141, 789 (1966), their form factors (Ry),
+// lattice constants and silicon's Eg(Γ) = 3.4 eV, all from memory.
 
 const RATE_LIMIT = 80;
 let demo: DemoServer;
@@ -71,6 +73,7 @@ beforeAll(async () => {
   tokens.deactivated = await demo.token("jonas.weber");
   tokens.revoked = await demo.token("tomas.okafor");
   tokens.burst = await demo.token("tomas.okafor");
+  tokens.physics = await demo.token("hanna.lindqvist");
   await demo.t.db.update(apiTokens).set({ revokedAt: sql`NOW(3)` }).where(eq(apiTokens.tokenHash, hashToken(tokens.revoked)));
 });
 afterAll(async () => demo?.close());
@@ -295,6 +298,23 @@ describe("POST /api/v1/checks/nfe", () => {
     expect(r.verdict).toBe("none");
   });
 
+  it("says converged and how many plane waves; a basis stopped by the cap is converged: false with a note", async () => {
+    const ordinary = parse(nfeCheckResultSchema, await nfe({ periodAngstrom: 5.65325, coefficients: [{ n: 1, valueEv: 0.1 }] }));
+    expect(ordinary.centralEquation.converged).toBe(true);
+    expect(ordinary.centralEquation.planeWaves % 2).toBe(1);
+    // Strong coefficients on a long period at a high gap: the 201-wave cap comes before convergence.
+    const capped = parse(nfeCheckResultSchema, await nfe({
+      periodAngstrom: 100, mass: 10, gap: 19, statedGapEv: 1, coefficients: [{ n: 1, valueEv: 10 }, { n: 2, valueEv: -10 }, { n: 3, valueEv: 10 }],
+    }));
+    expect(capped.centralEquation).toMatchObject({ converged: false, planeWaves: 201 });
+    expect(capped.notes.join(" ")).toMatch(/did not converge/);
+  });
+
+  it("answers 422 at the field to a period or a mass too small for double precision", async () => {
+    expectError(await nfe({ periodAngstrom: 1e-6, coefficients: [{ n: 1, valueEv: 0.5 }] }), 422, "invalid_physics_input", "periodAngstrom");
+    expectError(await nfe({ periodAngstrom: 2, mass: 1e-5, coefficients: [{ n: 1, valueEv: 0.5 }] }), 422, "invalid_physics_input", "mass");
+  });
+
   it("answers 400 to a malformed body and 422 to a coefficient given twice", async () => {
     expectError(await nfe({ coefficients: [{ n: 1, valueEv: 0.1 }] }), 400, "invalid_request", "periodAngstrom");
     expectError(await nfe({ periodAngstrom: 5.65, coefficients: [] }), 400, "invalid_request", "coefficients");
@@ -311,6 +331,68 @@ describe("POST /api/v1/checks/nfe", () => {
     expect(streamed.status).toBe(413);
     expect(JSON.parse(streamed.text)).toMatchObject({ error: { code: "too_large" } });
     expect(streamed.sentBytes).toBeLessThan(16 * 1024 * 1024);
+  });
+});
+
+describe("POST /api/v1/checks/epm", () => {
+  const epm = (payload: unknown, token = tokens.physics) =>
+    call("/api/v1/checks/epm", { method: "POST", token, body: JSON.stringify(payload), headers: { "Content-Type": "application/json" } });
+  const SI = { structure: "diamond", latticeAngstrom: 5.43, formFactors: { S3: -0.21, S8: 0.04, S11: 0.08 } };
+  const GAAS = { structure: "zincblende", latticeAngstrom: 5.64, formFactors: { S3: -0.23, S8: 0.01, S11: 0.06, A3: 0.07, A4: 0.05, A11: 0.01 } };
+
+  it("silicon [CB66]: Eg(Γ) = 3.4 eV within 0.1 eV, the fundamental gap along Δ near 0.85 of Γ–X, a pass", async () => {
+    const r = parse(epmCheckResultSchema, await epm({ ...SI, stated: { gammaEv: 3.4 } }));
+    expect(Math.abs(Number(r.gamma.gapEv) - 3.4)).toBeLessThan(0.1);
+    expect(r.gamma.verdict).toBe("pass");
+    expect(r.x.statedEv).toBeNull();
+    expect(r.fundamental.valley).toBe("Δ");
+    expect(Math.abs(Number(r.x.gammaXMinimum.fraction) - 0.85)).toBeLessThan(0.01);
+    expect(r.converged).toBe(true);
+    expect(r.planeWaves).toBeGreaterThan(100);
+    expect(r.bands).toBeNull();
+    expect(r.verdict).toBe("pass");
+    expect(r.codataEdition).toBe("CODATA 2018");
+    expect(Number(r.formFactorsEv.S3)).toBeCloseTo(-0.21 * 13.605693122994, 9);
+  });
+
+  it("form factors in eV give the same gaps; GaAs [CB66] is direct; the band structure comes on request", async () => {
+    const ry = 13.605693122994;
+    const inRy = parse(epmCheckResultSchema, await epm(SI));
+    const inEv = parse(epmCheckResultSchema, await epm({ ...SI, formFactorUnit: "ev", formFactors: { S3: -0.21 * ry, S8: 0.04 * ry, S11: 0.08 * ry } }));
+    for (const p of ["gamma", "x", "l"] as const) expect(Math.abs(Number(inRy[p].gapEv) - Number(inEv[p].gapEv))).toBeLessThan(1e-9);
+    const gaas = parse(epmCheckResultSchema, await epm({ ...GAAS, bands: true, stated: { gammaEv: 1.519, xEv: 1.981, lEv: null } }));
+    expect(gaas.fundamental.valley).toBe("Γ");
+    expect(gaas.x.verdict).toBe("warn");
+    expect(gaas.l.verdict).toBe("none");
+    const bands = gaas.bands!;
+    expect(bands.labels.map((l) => l.label)).toEqual(["L", "Γ", "X", "U|K", "Γ"]);
+    expect(bands.energiesEv).toHaveLength(8);
+    for (const band of bands.energiesEv) expect(band).toHaveLength(bands.distance.length);
+    const gamma = bands.distance.findIndex((d) => Math.abs(d - bands.labels[1].distance) < 1e-6);
+    expect(bands.energiesEv[3][gamma]).toBe(0);
+    expect(Math.abs(bands.energiesEv[4][gamma] - Number(gaas.gamma.gapEv))).toBeLessThanOrEqual(bands.deviationEv + 1e-4);
+  });
+
+  it("refuses bad input at its field with a 400, never a 500", async () => {
+    expectError(await epm({ ...SI, formFactors: { ...SI.formFactors, A3: 0.07 } }), 400, "invalid_request", "formFactors.A3");
+    const unknown = await epm({ ...SI, formFactors: { ...SI.formFactors, S4: 0.1 } });
+    expectError(unknown, 400, "invalid_request", "formFactors");
+    expect(apiErrorSchema.parse(unknown.body).error.message).toMatch(/S4/);
+    expectError(await epm({ ...SI, latticeAngstrom: 0 }), 400, "invalid_request", "latticeAngstrom");
+    expectError(await epm({ ...SI, latticeAngstrom: -5.43 }), 400, "invalid_request", "latticeAngstrom");
+    expectError(await epm({ ...SI, latticeAngstrom: "5.43" }), 400, "invalid_request", "latticeAngstrom");
+    expectError(await epm({ ...SI, formFactors: { S3: "-0.21", S8: 0.04, S11: 0.08 } }), 400, "invalid_request", "formFactors.S3");
+    expectError(await epm({ ...SI, formFactors: { S3: -0.21, S11: 0.08 } }), 400, "invalid_request", "formFactors.S8");
+    expectError(await epm({ ...SI, formFactors: { ...SI.formFactors, S11: 2 } }), 400, "invalid_request", "formFactors.S11");
+    expectError(await epm({ ...SI, structure: "wurtzite" }), 400, "invalid_request", "structure");
+    expectError(await epm({ ...SI, formFactorUnit: "hartree" }), 400, "invalid_request", "formFactorUnit");
+    expectError(await epm({ ...SI, stated: { gammaEv: -1 } }), 400, "invalid_request", "stated.gammaEv");
+    expectError(await epm({ ...SI, stated: { gamma: 3.4 } }), 400, "invalid_request", "stated");
+    expectError(await epm({ ...SI, toleranceEv: 0 }), 400, "invalid_request", "toleranceEv");
+    expectError(await call("/api/v1/checks/epm", { method: "POST", token: tokens.physics, body: '{"structure":"diamond","latticeAngstrom":NaN}', headers: { "Content-Type": "application/json" } }), 400, "invalid_json");
+    expectError(await call("/api/v1/checks/epm", { method: "POST", token: tokens.physics, body: "structure=diamond", headers: { "Content-Type": "application/x-www-form-urlencoded" } }), 400, "invalid_content_type");
+    expectError(await call("/api/v1/checks/epm", { token: tokens.physics }), 400, "method_not_allowed");
+    expectError(await call("/api/v1/checks/epm", { method: "POST", body: JSON.stringify(SI), headers: { "Content-Type": "application/json" } }), 401, "unauthorized");
   });
 });
 

@@ -11,6 +11,7 @@ import { startAppServer, type AppServer } from "../support/app-server";
 import { freshDatabase, type TestDatabase } from "../support/db";
 import { readLastMail, readMailbox } from "../support/mailbox";
 import { HttpClient } from "../support/route-access";
+import { waitFor } from "../support/faults";
 import { sessionCookieValue } from "../support/session";
 
 const RAVI = "ravi.menon@kestrel-devices.test";
@@ -453,6 +454,24 @@ describe("sessions and sign-out", () => {
     expect((await again.get("/account")).status).toBe(302);
     expect(await t.db.select().from(sessions).where(eq(sessions.userId, priya.id))).toEqual([]);
     await t.db.update(users).set({ active: true, role: "reader" }).where(eq(users.id, priya.id));
+  });
+
+  it("refuses an expired session, and the housekeeping of the app's start removes expired sessions only", async () => {
+    const [hanna] = await t.db.select().from(users).where(eq(users.email, HANNA));
+    const live = await HttpClient.signedIn(app.url, hanna.id);
+    const stale = await HttpClient.signedIn(app.url, hanna.id);
+    const staleDigest = createHash("sha256").update(JSON.parse(Buffer.from(decodeURIComponent(stale.cookies.get("__bandledger")!).split(".")[0], "base64").toString("utf8"))).digest("hex");
+    await t.db.update(sessions).set({ expiresAt: sql`NOW(3) - INTERVAL 1 MINUTE` }).where(eq(sessions.id, staleDigest));
+    expect((await stale.get("/account")).status).toBe(302);
+    expect((await live.get("/account")).status).toBe(200);
+    const second = await startAppServer({ databaseUrl: t.url, smtpPort: sink.port, mailboxDir, workers: 1 });
+    try {
+      await waitFor(async () => (await t.db.select().from(sessions).where(eq(sessions.id, staleDigest))).length === 0 || null, { timeoutMs: 30_000, what: "the expired session removed at start" });
+    } finally {
+      await second.stop();
+    }
+    expect((await t.db.select().from(sessions).where(sql`${sessions.expiresAt} < NOW(3)`))).toEqual([]);
+    expect((await live.get("/account")).status).toBe(200);
   });
 
   it("lets React Router refuse a foreign Origin on UI actions: no code is sent and no name changes", async () => {

@@ -6,8 +6,9 @@ import { MAX_ACTIVE_TOKENS } from "~/.server/tokens";
 import { HttpClient } from "../support/route-access";
 import { startDemoServer, type DemoServer } from "./api-fixture";
 
-// The CPU of the physics checks is budgeted per person (over all their tokens and pages), each process takes only a
-// few check requests at once, and one person holds a bounded number of tokens.
+// The CPU of the physics checks is budgeted per person (over all their tokens and pages, and over the server's two
+// worker processes), each worker process takes only a few check requests at once, and one person holds a bounded
+// number of tokens.
 
 const CHECK_RATE = 12;
 let demo: DemoServer;
@@ -43,6 +44,9 @@ describe("the physics checks' budget per person", () => {
 });
 
 describe("check requests at once", () => {
+  // The cap is per worker process, so one worker: otherwise the second request may meet the other worker's count.
+  beforeAll(async () => demo.restart({ workers: 1 }));
+
   it("answers 503 with Retry-After while the process already works on as many as it takes", async () => {
     const token = await demo.token("mei.tanaka");
     // The first request holds the only place while its body trickles in.

@@ -1,9 +1,9 @@
 import { mkdtempSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
-import { eq } from "drizzle-orm";
+import { and, eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { auditLog, quantities, users } from "~/.server/db/schema";
+import { auditLog, materials, quantities, records, users } from "~/.server/db/schema";
 import { startSink, type Sink } from "~/.server/mail/sink";
 import type { CheckReportResponse } from "~/domain/check-report";
 import { loadDemo } from "../../seed-data/load";
@@ -92,7 +92,7 @@ describe("/checks/nfe and the record page without JavaScript", () => {
   it("renders the verdict of the query in the page (U_1 = 0.1 eV, stated 0.2 eV passes)", async () => {
     const html = await (await (await as("priya.raman")).get("/checks/nfe?period=5.65325&unit=angstrom&n=1&u=0.1&stated=0.2")).text();
     expect(html).toContain('data-nfe-result="pass"');
-    expect(html).toContain("central equation (11 plane waves)");
+    expect(html).toContain("central equation (13 plane waves)");
   });
 
   it("keeps a wrong input in its field with the message beside it", async () => {
@@ -101,6 +101,41 @@ describe("/checks/nfe and the record page without JavaScript", () => {
     expect(html).toMatch(/<input[^>]*id="nfe-period"[^>]*aria-invalid="true"/);
     expect(html).toMatch(/value="abc"/);
     expect(html).toContain("“abc” is not a decimal number.");
+  });
+});
+
+// [CB66] Cohen & Bergstresser, Phys. Rev. 141, 789 (1966): the demo's GaAs form factors (Ry), from memory.
+async function formFactorRecord(material: string, quantity: string): Promise<number> {
+  const [row] = await t.db
+    .select({ id: records.id })
+    .from(records)
+    .innerJoin(materials, eq(materials.id, records.materialId))
+    .innerJoin(quantities, eq(quantities.id, records.quantityId))
+    .where(and(eq(materials.key, material), eq(quantities.key, quantity)));
+  return row.id;
+}
+
+describe("the pseudopotential check on record pages and live proposals", () => {
+  it("shows GaAs's V_S(3) record with three gap results, the caution and a link to the band structure", async () => {
+    const id = await formFactorRecord("GaAs", "ff_vs3");
+    const html = await (await (await as("priya.raman")).get(`/records/${id}`)).text();
+    expect(html.match(/data-check="epm"/g)).toHaveLength(3);
+    expect(html).toContain("Pseudopotential gap at X");
+    expect(html).toContain("data-epm-caution");
+    expect(html).toMatch(/href="\/checks\/epm\?structure=zincblende&amp;lattice=5\.65325/);
+  });
+
+  it("checks a proposed form factor as typed (the proposal form's live GET): +0.23 Ry for V_S(3) fails", async () => {
+    const id = await formFactorRecord("GaAs", "ff_vs3");
+    const client = await as("tomas.okafor");
+    const response = await client.get(`/checks/report?kind=revision&recordId=${id}&value=0.23&unit=Ry`);
+    expect(response.status).toBe(200);
+    const body = (await response.json()) as CheckReportResponse;
+    expect(body.report?.subject.value).toBe("3.12930941828862");
+    expect(body.report?.results.filter((r) => r.kind === "epm").some((r) => r.status === "fail")).toBe(true);
+    const typo = (await (await client.get(`/checks/report?kind=revision&recordId=${id}&value=-0.23&unit=Rydberg`)).json()) as CheckReportResponse;
+    expect(typo.report?.status).toBe("none");
+    expect(typo.message).toMatch(/“Rydberg” is not accepted here; use eV, meV, Ry, mRy/);
   });
 });
 
@@ -120,5 +155,11 @@ describe("/admin/tolerances", () => {
     expect(entry).toMatchObject({ actorId: ids.get("ines.carvalho"), targetId: "me", detail: { from: null, to: "0.015" } });
     const lead = await (await as("ravi.menon")).post("/admin/tolerances", { quantity: "eg", tolerance: "0.5" });
     expect(lead.status).toBe(403);
+    // The pseudopotential check's tolerance: 0.15 eV from the catalogue, on the V_S(3) row, capped at 1 eV.
+    expect(page).toContain("pseudopotential check of the gaps at Γ, X, L");
+    expect((await admin.post("/admin/tolerances", { quantity: "ff_vs3", tolerance: "1.5" })).status).toBe(400);
+    expect((await admin.post("/admin/tolerances", { quantity: "ff_vs3", tolerance: "0.2" })).status).toBe(302);
+    const [vs3] = await t.db.select().from(quantities).where(eq(quantities.key, "ff_vs3"));
+    expect(vs3.checkTolerance).toBe("0.2");
   });
 });

@@ -37,7 +37,7 @@ beforeAll(async () => {
   const common = { databaseUrl: t.url, smtpPort: sink.port, mailboxDir };
   [plain, behindTls] = await Promise.all([
     startAppServer({ ...common, extraEnv: { TRUST_PROXY: "127.0.0.1" } }),
-    startAppServer({ ...common, extraEnv: { TRUST_PROXY: "127.0.0.1", BANDLEDGER_PUBLIC_URL: PUBLIC_HTTPS } }),
+    startAppServer({ ...common, extraEnv: { TRUST_PROXY: "127.0.0.1", BANDLEDGER_PUBLIC_URL: PUBLIC_HTTPS, BANDLEDGER_MAILBOX: "off" } }),
   ]);
   const [priya] = await t.db.select({ id: users.id }).from(users).where(eq(users.email, `priya.raman@${TEAM_DOMAIN}`));
   const g = generateToken();

@@ -1,11 +1,12 @@
 import { execFile, execFileSync } from "node:child_process";
-import { existsSync, mkdtempSync, readdirSync } from "node:fs";
+import { existsSync, mkdtempSync, readdirSync, renameSync, utimesSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { and, eq, isNull } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb } from "~/.server/db/client";
-import { auditLog, notices, proposals, users } from "~/.server/db/schema";
+import { FILE_GRACE_MS, sweepUnreferencedFiles } from "~/.server/housekeeping";
+import { attachments, auditLog, notices, proposals, users } from "~/.server/db/schema";
 import { startSink, type Sink } from "~/.server/mail/sink";
 import { loadUser, type CurrentUser } from "~/.server/permissions";
 import { readLimitedFormData, readStoredFile, storedFilePath, storeFile, StorageError } from "~/.server/storage";
@@ -31,6 +32,12 @@ function digestCli(): Promise<{ status: number; stderr: string }> {
       resolve({ status: error ? Number(error.code ?? 1) : 0, stderr });
     });
   });
+}
+
+/** Sets a file's modification time back by more than the sweep's grace period: as if it had lain there that long. */
+function ageBeyondGrace(file: string): void {
+  const then = new Date(Date.now() - FILE_GRACE_MS - 60_000);
+  utimesSync(file, then, then);
 }
 
 async function refused(promise: Promise<unknown>): Promise<Error> {
@@ -124,6 +131,56 @@ describe("attachments", () => {
   });
 });
 
+describe("the sweep of unreferenced files", () => {
+  it("removes a stored file no row names once it is older than the grace period, and keeps the named and the young", async () => {
+    // What an upload killed between storing its file and committing its row leaves: a stored file no row names.
+    const orphan = await storeFile(Buffer.from("T_K,PL_eV\n4,1.519\n"), { fileName: "killed.csv", allowed: ["csv"] });
+    const young = await storeFile(Buffer.from("T_K,PL_eV\n10,1.5187\n"), { fileName: "in-flight.csv", allowed: ["csv"] });
+    const [named] = await t.db.select().from(attachments).limit(1);
+    for (const sha of [orphan.sha256, named.sha256]) ageBeyondGrace(storedFilePath(sha));
+    // The piece of a write cut off by a kill (written aside, never renamed), an old one and one being written now.
+    const oldPiece = `${storedFilePath(young.sha256)}.0123456789ab.part`;
+    const newPiece = `${storedFilePath(young.sha256)}.ba9876543210.part`;
+    writeFileSync(oldPiece, "T_K,PL");
+    writeFileSync(newPiece, "T_K,PL");
+    ageBeyondGrace(oldPiece);
+    const stranger = path.join(path.dirname(storedFilePath(young.sha256)), "README");
+    writeFileSync(stranger, "not a stored file");
+    ageBeyondGrace(stranger);
+
+    const sweep = await sweepUnreferencedFiles();
+    expect(sweep.removed).toEqual([orphan.sha256]);
+    expect(sweep.removedPieces).toBe(1);
+    expect(sweep.bytesFreed).toBe(orphan.sizeBytes + 6);
+    expect(existsSync(storedFilePath(orphan.sha256))).toBe(false);
+    expect(existsSync(oldPiece)).toBe(false);
+    for (const kept of [storedFilePath(named.sha256), storedFilePath(young.sha256), newPiece, stranger]) expect(existsSync(kept), kept).toBe(true);
+    // The young one and the unnamed files the tests above stored a moment ago.
+    expect(sweep.keptInGrace).toBeGreaterThanOrEqual(1);
+    expect(Buffer.compare(await readStoredFile(named.sha256), PDF)).toBe(0);
+  });
+
+  it("gives an upload that stores the bytes of an old unnamed copy the whole grace period again", async () => {
+    const bytes = Buffer.from("T_K,PL_eV\n77,1.5076\n");
+    const first = await storeFile(bytes, { fileName: "first.csv", allowed: ["csv"] });
+    ageBeyondGrace(storedFilePath(first.sha256));
+    // A second upload of the same bytes has stored its file and not yet committed the row that names it.
+    await storeFile(bytes, { fileName: "second.csv", allowed: ["csv"] });
+    const sweep = await sweepUnreferencedFiles();
+    expect(sweep.removed).not.toContain(first.sha256);
+    expect(Buffer.compare(await readStoredFile(first.sha256), bytes)).toBe(0);
+  });
+
+  it("puts back a file that a sweep stopped midway had moved aside", async () => {
+    const [named] = await t.db.select().from(attachments).limit(1);
+    const file = storedFilePath(named.sha256);
+    renameSync(file, `${file}.00aa11bb22cc.sweep`);
+    await sweepUnreferencedFiles();
+    expect(readdirSync(path.dirname(file)).filter((f) => f.startsWith(named.sha256))).toEqual([named.sha256]);
+    expect(Buffer.compare(await readStoredFile(named.sha256), PDF)).toBe(0);
+  });
+});
+
 describe("npm run digest", () => {
   it("sends each digest person one message with every waiting notice and marks them sent", async () => {
     const waiting = await t.db.select().from(notices).where(and(eq(notices.userId, who.hanna.id), isNull(notices.sentAt)));
@@ -139,5 +196,14 @@ describe("npm run digest", () => {
     const again = await digestCli();
     expect(again.stderr).toContain("sent 0 digests with 0 notices");
     expect(existsSync(dataDir)).toBe(true);
+  });
+
+  it("then sweeps the files no row names that are older than the grace period", async () => {
+    const orphan = await storeFile(Buffer.from("T_K,PL_eV\n300,1.4225\n"), { fileName: "killed.csv", allowed: ["csv"] });
+    ageBeyondGrace(storedFilePath(orphan.sha256));
+    const run = await digestCli();
+    expect(run.status, run.stderr).toBe(0);
+    expect(run.stderr).toMatch(/housekeeping: removed 1 unreferenced file and 0 unfinished pieces \(\d+ bytes\)/);
+    expect(existsSync(storedFilePath(orphan.sha256))).toBe(false);
   });
 });

@@ -70,6 +70,9 @@ describe("the proposal form without JavaScript", () => {
     const [draft] = await t.db.select().from(proposals).where(and(eq(proposals.authorId, ids.tomas), eq(proposals.recordId, gasbLattice)));
     expect(draft).toMatchObject({ state: "draft", payload: expect.objectContaining({ value: "0.60959", unit: "nm" }) });
     expect(html).toContain(`name="proposalId" value="${draft.id}"`);
+    // The status line says the draft is stored, at the time the database holds.
+    expect(html).not.toContain("Nothing saved yet");
+    expect(html).toContain(`Not submitted: what you typed is saved as a draft (${draft.updatedAt.toISOString().slice(11, 19)} UTC).`);
   });
 
   it("keeps a form posted after the session ended and restores it into a draft after sign-in", async () => {
@@ -110,6 +113,41 @@ describe("deciding through the proposal page", () => {
     const again = await as.ravi.post(`/proposals/${id}`, { intent: "reject", version: String(version), reason: "Too late." });
     expect(again.status).toBe(409);
     expect(await again.text()).toContain("This proposal was already approved by Ravi Menon");
+  });
+});
+
+describe("a stale proposal on its page", () => {
+  it("may be rejected without a rebase, is not approved, and the page says both", async () => {
+    // [V01] GaAs a(300 K) = 5.65325 Å; two restatements of it compete for the same record.
+    const [rec] = await t.db.select({ id: records.id }).from(records).innerJoin(materials, eq(materials.id, records.materialId)).where(and(eq(materials.key, "GaAs"), eq(records.conditionKey, "T=300|V=|x=")));
+    const propose = async (value: string) => {
+      const r = await as.tomas.post(`/proposals/new?record=${rec.id}&kind=revision`, {
+        intent: "submit", kind: "revision", recordId: String(rec.id), material: "GaAs", quantity: "lattice_a",
+        value, unit: "Å", method: "compilation", ...V01_FORM, locator: "GaAs parameter table", notes: "Restated from [V01].",
+      });
+      expect(r.status).toBe(302);
+      return Number(/^\/proposals\/(\d+)$/.exec(r.headers.get("location") ?? "")?.[1]);
+    };
+    const versionOf = async (id: number) => String((await t.db.select({ version: proposals.version }).from(proposals).where(eq(proposals.id, id)))[0].version);
+    const first = await propose("5.6533");
+    const second = await propose("5.65330");
+    expect((await as.hanna.post(`/proposals/${first}`, { intent: "approve", version: await versionOf(first) })).status).toBe(302);
+
+    const page = (await (await as.ravi.get(`/proposals/${second}`)).text()).replace(/<!-- -->/g, "");
+    expect(page).toContain("it cannot be approved until its author rebases it. A lead may still");
+    expect(page).toContain("reject it as it stands, with a reason, without asking for a rebase first.");
+    expect(page).toMatch(/<button type="submit" class="btn-primary" disabled="">Approve<\/button>/);
+    expect(page).toContain("Stale: approving waits until its author rebases it. Rejecting is open now.");
+    expect(page).toMatch(/<button type="submit" class="btn">Reject<\/button>/);
+
+    const version = await versionOf(second);
+    const approve = await as.ravi.post(`/proposals/${second}`, { intent: "approve", version });
+    expect(approve.status).toBe(409);
+    expect(await approve.text()).toContain("Its author must rebase the proposal first.");
+    const reject = await as.ravi.post(`/proposals/${second}`, { intent: "reject", version, reason: "The record already holds this value to four decimals." });
+    expect(reject.status).toBe(302);
+    const [row] = await t.db.select().from(proposals).where(eq(proposals.id, second));
+    expect(row).toMatchObject({ state: "rejected", decidedBy: ids.ravi, reason: "The record already holds this value to four decimals.", resultRevisionId: null });
   });
 });
 

@@ -159,9 +159,21 @@ describe("deciding", () => {
     expect((await versionOf(id)).state).toBe("submitted");
     const page = await loadProposalPage(who.ravi, id);
     expect(page.can.decide).toBe(false);
-    expect(page.can.decideBlocked).toMatch(/another lead of the family decides it/);
+    expect(page.can.decideBlocked).toBe("You wrote this proposal: another lead of Arsenides or an admin decides it (four-eyes rule).");
+    expect(e.message).toBe(page.can.decideBlocked);
     const done = await decideProposal(who.hanna, id, { decision: "approve", version });
     expect(done.state).toBe("approved");
+  });
+
+  it("words who decides for the author's role: a contributor is told a lead decides, not 'another lead'", async () => {
+    const byContributor = await submitted(who.tomas, gapRevision(recordIds.gaasGap77, "1.5076", { locator: "GaAs parameter table", notes: "Four digits." }));
+    const contributorPage = await loadProposalPage(who.tomas, byContributor);
+    expect(contributorPage.can.decideBlocked).toBe("You wrote this proposal: a lead of Arsenides or an admin decides it, and the decision comes to you by e-mail.");
+    expect(contributorPage.can.decideBlocked).not.toMatch(/another lead/);
+    const byAdmin = await submitted(who.ines, gapRevision(recordIds.gaasGap77, "1.50760", { locator: "GaAs parameter table", notes: "Five digits." }));
+    expect((await loadProposalPage(who.ines, byAdmin)).can.decideBlocked).toBe("You wrote this proposal: a lead of Arsenides or another admin decides it (four-eyes rule).");
+    const e = await refusal(decideProposal(who.ines, byAdmin, { decision: "approve", version: (await versionOf(byAdmin)).version }));
+    expect(e.message).toMatch(/another admin/);
   });
 
   it("refuses a lead of another family and a contributor, and lets an admin decide", async () => {
@@ -234,6 +246,7 @@ describe("deciding", () => {
 describe("stale proposals", () => {
   it("are refused until their author rebases them, and the author is shown the new current value", async () => {
     const rec = await recordOf("GaAs", "eg", "T=300|V=G|x=");
+    const [based] = await t.db.select({ value: revisions.value }).from(revisions).where(eq(revisions.id, rec.currentRevisionId!));
     const first = await submitted(who.tomas, gapRevision(rec.id, "1.4224"));
     const second = await submitted(who.mei, gapRevision(rec.id, "1.4226"));
     await decideProposal(who.ravi, first, { decision: "approve", version: (await versionOf(first)).version });
@@ -248,7 +261,19 @@ describe("stale proposals", () => {
     expect((await loadProposalPage(who.hanna, second)).can.rebase).toBe(false);
     expect((await refusal(rebaseProposal(who.tomas, second, version))).code).toBe("forbidden");
     expect((await refusal(rebaseProposal(who.mei, second, version - 1))).code).toBe("changed");
+    const after = Date.now();
     await rebaseProposal(who.mei, second, version);
+    // The leads it went to hear of the new base as each chose: Ravi by mail now, Hanna in her next digest.
+    const toRavi = (await mailsTo("ravi.menon@kestrel-devices.test")).filter((m) => Number(m.file.split("-")[0]) >= after);
+    expect(toRavi.map((m) => m.subject)).toEqual(["Rebased: GaAs · Band gap (Γ, 300 K)"]);
+    expect(toRavi[0].text).toContain(`Now based on 1.4224 eV (it was based on ${based.value} eV).`);
+    expect(toRavi[0].text).toContain("1.4224 eV → 1.4226 eV");
+    expect(toRavi[0].text).toContain(`http://bandledger.test/proposals/${second}`);
+    const link = `http://bandledger.test/proposals/${second}`;
+    const forHanna = await t.db.select().from(notices).where(and(eq(notices.userId, who.hanna.id), eq(notices.kind, "proposal.rebased"), eq(notices.link, link)));
+    expect(forHanna.map((n) => n.sentAt)).toEqual([null]);
+    expect(forHanna[0].bodyText).toContain(`Now based on 1.4224 eV (it was based on ${based.value} eV).`);
+    expect(await t.db.select().from(notices).where(and(eq(notices.userId, who.mei.id), eq(notices.kind, "proposal.rebased")))).toHaveLength(0);
     expect((await refusal(decideProposal(who.hanna, second, { decision: "approve", version }))).code).toBe("changed");
     const done = await decideProposal(who.hanna, second, { decision: "approve", version: version + 1 });
     const [added] = await t.db.select().from(revisions).where(eq(revisions.id, done.resultRevisionId!));
@@ -268,7 +293,18 @@ describe("stale proposals", () => {
     await rebaseProposal(who.mei, b, (await versionOf(b)).version);
     const [row] = await t.db.select().from(proposals).where(eq(proposals.id, b));
     expect(row.kind).toBe("revision");
+    const [told] = await t.db.select().from(notices).where(and(eq(notices.userId, who.hanna.id), eq(notices.kind, "proposal.rebased"), eq(notices.link, `http://bandledger.test/proposals/${b}`)));
+    expect(told.bodyText).toContain("Now based on 5.8687 Å (it was based on no value (a new record)).");
     await decideProposal(who.ravi, b, { decision: "approve", version: row.version });
+  });
+
+  it("tells no one of a rebased draft, since no lead was told of the draft", async () => {
+    const draft = await createDraft(who.mei, gapRevision(recordIds.gaasGap300, "1.42251"));
+    const other = await submitted(who.tomas, gapRevision(recordIds.gaasGap300, "1.42249"));
+    await decideProposal(who.ravi, other, { decision: "approve", version: (await versionOf(other)).version });
+    await rebaseProposal(who.mei, draft, (await versionOf(draft)).version);
+    expect(await t.db.select().from(notices).where(eq(notices.link, `http://bandledger.test/proposals/${draft}`))).toHaveLength(0);
+    await withdrawProposal(who.mei, draft);
   });
 });
 

@@ -12,7 +12,7 @@ let token: string;
 let dir: string;
 let proxy: http.Server;
 let proxyUrl: string;
-let mode: "pass" | "flip" | "flip-and-drop-digest" | "other-etag" = "pass";
+let mode: "pass" | "flip" | "flip-and-drop-digest" | "other-etag" | "flip-gzip" = "pass";
 
 type Run = { code: number; stdout: string; stderr: string };
 
@@ -27,6 +27,23 @@ function cli(args: string[], env: Record<string, string> = {}): Promise<Run> {
 // A tiny forwarding proxy that can damage the download on its way, as a broken cache or link would.
 function startProxy(): Promise<void> {
   proxy = http.createServer(async (req, res) => {
+    if (mode === "flip-gzip" && req.url?.includes("/download")) {
+      // The gzip form as sent, one byte of its deflate stream changed, the digest dropped: only decoding and the
+      // hash of the decoded bytes can tell.
+      http.get(demo.url + req.url, { headers: { authorization: req.headers.authorization ?? "", "accept-encoding": "gzip" } }, (up) => {
+        const chunks: Buffer[] = [];
+        up.on("data", (c: Buffer) => chunks.push(c));
+        up.on("end", () => {
+          const body = Buffer.concat(chunks);
+          body[Math.floor(body.length / 2)] ^= 0x01;
+          const headers = { ...up.headers };
+          delete headers["repr-digest"];
+          res.writeHead(up.statusCode ?? 502, headers);
+          res.end(body);
+        });
+      });
+      return;
+    }
     const upstream = await fetch(demo.url + req.url, { headers: { authorization: req.headers.authorization ?? "", "accept-encoding": "identity" } });
     const body = Buffer.from(await upstream.arrayBuffer());
     const headers = Object.fromEntries([...upstream.headers].filter(([k]) => !["content-length", "content-encoding", "transfer-encoding", "connection", "keep-alive"].includes(k)));
@@ -69,7 +86,7 @@ describe("bandledger pull against the running server", () => {
     expect(run.code).toBe(0);
     const meta = await (await fetch(`${demo.url}/api/v1/sets/hemt-baseline/releases/3`, { headers: { Authorization: `Bearer ${token}` } })).json();
     expect(run.stdout).toContain(`sha256 ${meta.sha256}`);
-    const served = Buffer.from(await (await fetch(`${demo.url}/sets/hemt-baseline/releases/3.json`, { headers: { Authorization: `Bearer ${token}` } })).arrayBuffer());
+    const served = Buffer.from(await (await fetch(`${demo.url}/sets/hemt-baseline/releases/3.json`, { headers: { Authorization: `Bearer ${token}`, "Accept-Encoding": "identity" } })).arrayBuffer());
     expect(readFileSync(out).equals(served)).toBe(true);
     expect(leftovers()).toEqual([]);
   });
@@ -79,6 +96,21 @@ describe("bandledger pull against the running server", () => {
     const run = await cli(["pull", "hemt-baseline@2", "--out", out, "--format", "csv", "--url", demo.url], { BANDLEDGER_TOKEN: token });
     expect(run.code).toBe(0);
     expect(readFileSync(out, "utf8")).toMatch(/^# schema: "bandledger\.release"\r\n/);
+  });
+
+  it.each(["json", "csv"] as const)("writes the same %s file with compression (brotli, gzip) as without", async (format) => {
+    const written: Record<string, Buffer> = {};
+    for (const compression of ["auto", "br", "gzip", "none"]) {
+      const out = path.join(dir, `compare-${compression}.${format}`);
+      const run = await cli(["pull", "hemt-baseline@3", "--out", out, "--format", format, "--compression", compression, "--url", demo.url, "--token", token]);
+      expect(run.stderr).toBe("");
+      expect(run.code).toBe(0);
+      expect(run.stdout).toContain(`(sent as ${{ auto: "br", br: "br", gzip: "gzip", none: "identity" }[compression]})`);
+      written[compression] = readFileSync(out);
+    }
+    for (const compression of ["auto", "br", "gzip"]) expect(written[compression].equals(written.none), compression).toBe(true);
+    const served = Buffer.from(await (await fetch(`${demo.url}/sets/hemt-baseline/releases/3.${format}`, { headers: { Authorization: `Bearer ${token}`, "Accept-Encoding": "identity" } })).arrayBuffer());
+    expect(written.none.equals(served)).toBe(true);
   });
 
   it("passes through an honest proxy", async () => {
@@ -91,6 +123,7 @@ describe("bandledger pull against the running server", () => {
     ["a flipped byte", "flip" as const],
     ["a flipped byte without the Repr-Digest header", "flip-and-drop-digest" as const],
     ["a foreign ETag", "other-etag" as const],
+    ["a changed byte inside the gzip stream, without the Repr-Digest header", "flip-gzip" as const],
   ])("refuses a download with %s: exit 3, no file written, an existing file left alone", async (_label, m) => {
     mode = m;
     const fresh = path.join(dir, `corrupt-${m}.json`);
@@ -121,7 +154,7 @@ describe("bandledger pull against the running server", () => {
   });
 
   it("exits 2 for wrong arguments", async () => {
-    for (const args of [["pull", "hemt-baseline", "--out", "x.json", "--token", token], ["pull", "hemt-baseline@3", "--token", token], ["pull", "hemt-baseline@3", "--out", "x.json"], ["pull", "hemt-baseline@3", "--out", "x", "--format", "xml", "--token", token]]) {
+    for (const args of [["pull", "hemt-baseline", "--out", "x.json", "--token", token], ["pull", "hemt-baseline@3", "--token", token], ["pull", "hemt-baseline@3", "--out", "x.json"], ["pull", "hemt-baseline@3", "--out", "x", "--format", "xml", "--token", token], ["pull", "hemt-baseline@3", "--out", "x", "--compression", "zip", "--token", token]]) {
       const run = await cli(args);
       expect(run.code, args.join(" ")).toBe(2);
       expect(run.stderr.trim().split("\n")).toHaveLength(1);

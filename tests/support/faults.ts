@@ -1,4 +1,5 @@
 import { randomBytes } from "node:crypto";
+import { readFileSync } from "node:fs";
 import http from "node:http";
 import mysql from "mysql2/promise";
 import type { AppServer } from "./app-server";
@@ -139,14 +140,39 @@ export function streamUntilAnswered(url: string, headers: Record<string, string>
   });
 }
 
-/** SIGKILL for the app: no shutdown hook, no closing of the pool, as when the machine loses the process. */
+/**
+ * SIGKILL for the app, its primary and every worker in the same moment: no shutdown hook, no closing of a pool, as
+ * when the machine loses the processes. Resolves once every one of them is gone.
+ */
 export async function killApp(app: AppServer): Promise<void> {
   const child = app.process;
   if (child.exitCode !== null || child.signalCode !== null) return;
-  await new Promise<void>((resolve) => {
-    child.once("exit", () => resolve());
-    child.kill("SIGKILL");
-  });
+  const workers = app.workerPids();
+  const exited = new Promise<void>((resolve) => child.once("exit", () => resolve()));
+  child.kill("SIGKILL");
+  for (const pid of workers) {
+    try {
+      process.kill(pid, "SIGKILL");
+    } catch {
+      /* gone already */
+    }
+  }
+  await exited;
+  await waitFor(() => workers.every((pid) => !isAlive(pid)), { timeoutMs: 5_000, what: "the killed workers to be gone" });
+}
+
+/** Whether a process of this pid still runs (a zombie waiting for its parent counts as gone). */
+export function isAlive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+  } catch {
+    return false;
+  }
+  try {
+    return !/^\S+ \(.*\) Z/.test(readFileSync(`/proc/${pid}/stat`, "utf8"));
+  } catch {
+    return false;
+  }
 }
 
 /**

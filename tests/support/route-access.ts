@@ -46,7 +46,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
   "routes/sets.new": { access: "role:contributor", requests: [{ method: "GET", path: "/sets/new" }, { method: "POST", path: "/sets/new", form: { name: "" } }] },
   "routes/sets.detail": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline" }, { method: "POST", path: "/sets/hemt-baseline", form: { intent: "unwatch" } }] },
   "routes/sets.compare": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/compare?from=2&to=3" }] },
-  "routes/sets.release": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/releases/3" }] },
+  "routes/sets.release": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/releases/3" }, { method: "GET", path: "/sets/hemt-baseline/releases/3?temperature=77&material=AlGaAs&x=0.3" }] },
   "routes/releases.json": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/releases/3.json" }] },
   "routes/releases.csv": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/releases/3.csv" }] },
   "routes/api-docs": { access: "signed-in", requests: [{ method: "GET", path: "/api-docs" }] },
@@ -60,11 +60,14 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
   "routes/api.v1.set-releases": { access: "api-user", requests: [{ method: "GET", path: "/api/v1/sets/hemt-baseline/releases" }] },
   "routes/api.v1.release": { access: "api-user", requests: [{ method: "GET", path: "/api/v1/sets/hemt-baseline/releases/3" }] },
   "routes/api.v1.release-download": { access: "api-user", requests: [{ method: "GET", path: "/api/v1/sets/hemt-baseline/releases/3/download?format=csv" }] },
+  "routes/api.v1.release-evaluate": { access: "api-user", requests: [{ method: "GET", path: "/api/v1/sets/hemt-baseline/releases/3/evaluate?temperature=77" }] },
   "routes/api.v1.set-compare": { access: "api-user", requests: [{ method: "GET", path: "/api/v1/sets/hemt-baseline/compare?from=2&to=3" }] },
   "routes/api.v1.checks.nfe": { access: "api-user", requests: [{ method: "POST", path: "/api/v1/checks/nfe", form: {} }] },
+  "routes/api.v1.checks.epm": { access: "api-user", requests: [{ method: "POST", path: "/api/v1/checks/epm", form: {} }] },
   "routes/api.v1.not-found": { access: "not-found", requests: [{ method: "GET", path: "/api/v1/no-such-endpoint" }] },
 
   "routes/checks.nfe": { access: "signed-in", requests: [{ method: "GET", path: "/checks/nfe?period=5.65325&unit=angstrom&n=1&u=0.1&stated=0.2" }] },
+  "routes/checks.epm": { access: "signed-in", requests: [{ method: "GET", path: "/checks/epm?structure=diamond&lattice=5.43&s3=-0.21&s8=0.04&s11=0.08" }] },
   "routes/checks.report": { access: "signed-in", requests: [{ method: "GET", path: "/checks/report?kind=new_record&material=GaAs&quantity=me&valley=G&value=0.067&unit=m0" }, { method: "POST", path: "/checks/report", form: { kind: "new_record", material: "GaAs", quantity: "eg", temperatureK: "300", valley: "G", value: "1.4225", unit: "eV" } }] },
   "routes/admin.tolerances": { access: "role:admin", requests: [{ method: "GET", path: "/admin/tolerances" }, { method: "POST", path: "/admin/tolerances", form: { quantity: "eg", tolerance: "" } }] },
 

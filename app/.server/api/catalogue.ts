@@ -5,7 +5,7 @@ import { quantityByKey } from "~/domain/quantities";
 import type { AcceptedUnit } from "~/domain/units";
 import { db } from "../db/client";
 import { quantities } from "../db/schema";
-import { listMaterialsByFamily } from "../registry/queries";
+import { listMaterialsByFamily } from "../registry/material-page";
 
 /** Every material with its family, through the registry's own listing. */
 export async function materialList(): Promise<z.infer<typeof materialListSchema>> {

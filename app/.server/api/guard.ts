@@ -21,7 +21,7 @@ export async function requireApiCaller(request: Request): Promise<ApiCaller> {
   const user = await requireApiUser(request);
   const { bucket, viaToken } = bucketOf(request, user);
   const limit = env().BANDLEDGER_API_RATE_PER_MINUTE;
-  const { count: n, secondsLeft: retryAfter } = countHitInProcess(bucket, WINDOW_SECONDS);
+  const { count: n, secondsLeft: retryAfter } = await countHitInProcess(bucket, WINDOW_SECONDS);
   if (n > limit) {
     throw apiError(429, "rate_limited", `More than ${limit} requests a minute; try again in ${retryAfter} s.`, null, { "Retry-After": String(retryAfter), "Cache-Control": "no-store" });
   }

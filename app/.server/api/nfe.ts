@@ -1,8 +1,11 @@
 import type { z } from "zod";
 import type { nfeCheckBodySchema, nfeCheckResultSchema } from "~/domain/api-schemas";
 import { toDecimalString } from "~/domain/decimal";
-import { checkNfeGap, CODATA_EDITION } from "~/domain/physics";
+import { checkNfeGap, CODATA_EDITION, PhysicsInputError } from "~/domain/physics";
 import { apiError } from "./respond";
+
+// The physics names its own inputs; the request body calls them so.
+const BODY_FIELDS: Record<string, string> = { period: "periodAngstrom", mass: "mass" };
 
 /** The nearly-free-electron check of the physics module, its derived numbers written as decimal strings. */
 export function runNfeCheck(body: z.infer<typeof nfeCheckBodySchema>): z.infer<typeof nfeCheckResultSchema> {
@@ -22,6 +25,7 @@ export function runNfeCheck(body: z.infer<typeof nfeCheckBodySchema>): z.infer<t
       toleranceEv: body.toleranceEv,
     });
   } catch (e) {
+    if (e instanceof PhysicsInputError) throw apiError(422, "invalid_physics_input", e.message, BODY_FIELDS[e.field] ?? null);
     if (e instanceof RangeError) throw apiError(422, "invalid_physics_input", e.message, null);
     throw e;
   }

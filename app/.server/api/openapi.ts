@@ -1,7 +1,7 @@
 import { OpenAPIRegistry, OpenApiGeneratorV31, type RouteConfig } from "@asteasolutions/zod-to-openapi";
 import { z } from "zod";
 import {
-  apiErrorSchema, comparisonSchema, compareQuerySchema, downloadQuerySchema, freezeBodySchema, materialListSchema, nfeCheckBodySchema,
+  apiErrorSchema, comparisonSchema, evaluateQuerySchema, evaluationSchema, compareQuerySchema, downloadQuerySchema, freezeBodySchema, materialListSchema, nfeCheckBodySchema, epmCheckBodySchema, epmCheckResultSchema,
   nfeCheckResultSchema, quantityListSchema, recordHistorySchema, recordPageSchema, recordsQuerySchema, releaseDetailSchema, releaseDocumentSchema, releaseSummarySchema,
   setDetailSchema, setListSchema,
 } from "~/domain/api-schemas";
@@ -97,21 +97,36 @@ function buildRegistry(): OpenAPIRegistry {
   });
   registry.registerPath({
     method: "get", path: "/api/v1/sets/{slug}/releases/{number}/download", tags: ["sets"], summary: "The frozen bytes of a release, JSON or CSV",
-    description: "The same bytes for every request, for ever. ETag is the SHA-256 of the content (JSON) or of the CSV bytes; send If-None-Match for a 304. Downloads by token are written to the audit log.",
+    description: "The same bytes for every request, for ever, as identity or compressed (br or gzip) by Accept-Encoding; decoded, every form is the identity bytes. The identity ETag is the SHA-256 of the content (JSON) or of the CSV bytes; an encoded form has its own ETag beginning with it. Send If-None-Match for a 304. Downloads by token are written to the audit log.",
     request: { params: releaseParams, query: downloadQuerySchema },
     responses: {
       200: {
         description: "The release file, with Content-Disposition naming it <slug>-r<number>.<format>.",
         headers: {
-          ETag: { description: "\"<sha256>\"", schema: { type: "string" } },
+          ETag: { description: "\"<sha256>\" as identity; \"<sha256>-<br|gzip>-<16 hex of the encoded bytes' SHA-256>\" for an encoded form", schema: { type: "string" } },
+          "Content-Encoding": { description: "br or gzip when the request accepts one; absent for identity.", schema: { type: "string" } },
           "Cache-Control": { description: "private, max-age=31536000, immutable (members only: never kept by a shared cache)", schema: { type: "string" } },
-          Vary: { description: "Cookie, Authorization", schema: { type: "string" } },
-          "Repr-Digest": { description: "sha-256 of the bytes served (RFC 9530).", schema: { type: "string" } },
+          Vary: { description: "Cookie, Authorization, Accept-Encoding", schema: { type: "string" } },
+          "Repr-Digest": { description: "sha-256 of the bytes served, encoded ones for an encoded form (RFC 9530).", schema: { type: "string" } },
           "X-Bandledger-Release-Sha256": { description: "The release's content hash, for both formats.", schema: { type: "string" } },
         },
         content: { "application/json": { schema: releaseDocumentSchema }, "text/csv": { schema: z.string().meta({ description: "The CSV form (docs/release-format.md)." }) } },
       },
       304: { description: "Not modified: the If-None-Match matched the ETag." },
+      ...errors(400, 404, ...READ_ERRORS),
+    },
+  });
+  registry.registerPath({
+    method: "get", path: "/api/v1/sets/{slug}/releases/{number}/evaluate", tags: ["sets"], summary: "A release evaluated at a temperature, composition and substrate",
+    description:
+      "Every derived value the release's pinned revisions give: Eg at Γ, X and L by Varshni (with bowing for an alloy), a(T) (Vegard for an alloy), the Kane mass, and on a substrate the lattice mismatch and an alloy's lattice-matched x; each with its formula, the revisions it used and a GUM uncertainty budget (inputs without a stated uncertainty are named, never taken as zero). What cannot be derived is named under missing. The same conditions give the same bytes as `bandledger evaluate`.",
+    request: { params: releaseParams, query: evaluateQuerySchema },
+    responses: {
+      200: {
+        description: "The evaluation; X-Bandledger-Release-Sha256 names the release it was computed from.",
+        headers: { "X-Bandledger-Release-Sha256": { description: "The release's content hash.", schema: { type: "string" } } },
+        content: { "application/json": { schema: evaluationSchema }, "text/csv": { schema: z.string().meta({ description: "The CSV form: a # preamble with the release hash and the conditions, then one row per value." }) } },
+      },
       ...errors(400, 404, ...READ_ERRORS),
     },
   });
@@ -125,6 +140,15 @@ function buildRegistry(): OpenAPIRegistry {
     description: "Read-only computation: first-order 2|U_n| and the converged central-equation gap, compared with the stated gap.",
     request: { body: { content: { "application/json": { schema: nfeCheckBodySchema } } } },
     responses: { 200: json(nfeCheckResultSchema, "The check."), ...errors(400, 422, ...READ_ERRORS) },
+  });
+  registry.registerPath({
+    method: "post", path: "/api/v1/checks/epm", tags: ["checks"], summary: "Pseudopotential check of the gaps at Γ, X and L from form factors",
+    description:
+      "Read-only computation: the empirical pseudopotential method (Cohen & Bergstresser, Phys. Rev. 141, 789 (1966)) for a diamond or zinc-blende crystal, " +
+      "plane waves |G|² ≤ Gmax² grown until the gaps move by less than 1 meV, compared with the stated gaps (default tolerance 0.15 eV). " +
+      "A three-form-factor local model reproduces the main gaps to about 0.1–0.3 eV: it checks consistency and does not replace measured values.",
+    request: { body: { content: { "application/json": { schema: epmCheckBodySchema } } } },
+    responses: { 200: json(epmCheckResultSchema, "The check."), ...errors(400, 422, ...READ_ERRORS) },
   });
   registry.registerPath({
     method: "get", path: "/api/v1/openapi.json", tags: ["meta"], summary: "This description (OpenAPI 3.1)", security: [],

@@ -4,7 +4,8 @@ import type { recordHistorySchema, recordPageSchema, recordSchema, recordsQueryS
 import { normalisedDecimalKey } from "~/domain/exact-decimal";
 import { db, pool } from "../db/client";
 import { sources } from "../db/schema";
-import { loadRecord, type RevisionView } from "../registry/queries";
+import type { StoredRevisionView } from "~/domain/revision-view";
+import { loadRecord } from "../registry/record-page";
 import { apiError } from "./respond";
 
 type ApiRecord = z.infer<typeof recordSchema>;
@@ -45,7 +46,7 @@ async function sourcesById(ids: number[]): Promise<Map<number, ApiSource>> {
   return new Map(rows.map((s) => [s.id, apiSource(s)!]));
 }
 
-function revisionOf(view: RevisionView, unit: string, source: ApiSource | null): ApiRevision {
+function revisionOf(view: StoredRevisionView, unit: string, source: ApiSource | null): ApiRevision {
   return {
     id: view.id,
     seq: view.seq,

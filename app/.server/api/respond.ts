@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { isSolveRefused } from "../checks/solve-guard";
+import { isDatabaseDown } from "../db/client";
 import { isSetError } from "../sets/errors";
 import { readLimitedBody, StorageError } from "../storage";
 import { apiError } from "../tokens";
@@ -80,6 +81,7 @@ export async function runApi(handler: () => Promise<Response>): Promise<Response
       return apiError(status, status === 429 ? "rate_limited" : "busy", message, null, { "Retry-After": String(retryAfterSeconds), "Cache-Control": "no-store" });
     }
     console.error(e);
+    if (isDatabaseDown(e)) return apiError(503, "database_unavailable", "The database is unavailable right now; try again in a few seconds.", null, { "Retry-After": "5" });
     return apiError(500, "internal_error", "The server hit an unexpected error; it has been logged.", null);
   }
 }

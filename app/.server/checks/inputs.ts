@@ -4,12 +4,12 @@ import { db } from "../db/client";
 import { materials, quantities } from "../db/schema";
 import { definitionOf } from "../registry/catalogue";
 import type { Executor } from "../registry/executor";
-import { currentValuesOfMaterial } from "../registry/queries";
+import { currentValuesOfMaterial } from "../registry/material-page";
 
 export type MaterialRow = CheckMaterial & { id: number; familyId: number; endMemberAId: number | null; endMemberBId: number | null; formula: string; compositionVariable: string | null };
 
 const materialColumns = {
-  id: materials.id, key: materials.key, name: materials.name, kind: materials.kind, formula: materials.formula, familyId: materials.familyId,
+  id: materials.id, key: materials.key, name: materials.name, kind: materials.kind, structure: materials.structure, formula: materials.formula, familyId: materials.familyId,
   endMemberAId: materials.endMemberAId, endMemberBId: materials.endMemberBId, compositionVariable: materials.compositionVariable,
 };
 
@@ -42,7 +42,7 @@ export async function loadCheckQuantities(ex: Executor = db()): Promise<CheckQua
 export async function materialCheckValues(ex: Executor, materialId: number): Promise<CheckValue[]> {
   const rows = await currentValuesOfMaterial(ex, materialId);
   return rows.map((r) => ({
-    quantityKey: r.quantityKey, valley: r.valley, temperatureK: r.temperatureK, composition: r.composition, value: r.value, unit: r.unit,
+    quantityKey: r.quantityKey, valley: r.valley, temperatureK: r.temperatureK, composition: r.composition, value: r.value, unit: r.unit, uncertainty: r.uncertainty,
     recordId: r.recordId, revisionId: r.revisionId, sourceLabel: r.source?.label ?? null, validFromK: r.validFromK, validToK: r.validToK,
     potentialCoefficients: r.potentialCoefficients, periodAngstrom: r.periodAngstrom,
   }));

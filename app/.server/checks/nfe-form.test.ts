@@ -37,6 +37,16 @@ describe("the NFE check page's query", () => {
     expect(readNfeQuery(query("period=5&n=&u=")).errors.coefficients).toBe("Enter at least one coefficient U_n.");
   });
 
+  it("puts a period or a mass too small for double precision at its field, and keeps what was typed", () => {
+    const period = runNfePage(query("period=0.000001&n=1&u=0.5&stated=1"));
+    expect(period.result).toBeNull();
+    expect(period.values.period).toBe("0.000001");
+    expect(period.errors.period).toMatch(/^The period 0\.000001 Å is too small: .* at least 0\.0123 Å\.$/);
+    expect(period.errors.form).toBeUndefined();
+    const mass = runNfePage(query("period=2&n=1&u=0.5&mass=0.001&gap=20"));
+    expect(mass.errors.mass).toMatch(/^The mass 0\.001 m0 is too small/);
+  });
+
   it("round-trips a filled form through its query string, with as many coefficient rows as asked for", () => {
     const values = { ...NFE_EXAMPLE, coefficients: [{ n: "1", u: "0.71125" }, { n: "2", u: "0.0250" }], stated: "1.4225" };
     expect(readNfeQuery(nfeQueryOf(values)).values).toEqual(values);

@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { toDecimalString } from "~/domain/decimal";
 import { parseExactDecimal } from "~/domain/exact-decimal";
-import { checkNfeGap, CODATA_EDITION, DEFAULT_NFE_TOLERANCE_EV, zoneBoundaryEnergyEv, type Verdict } from "~/domain/physics";
+import { checkNfeGap, CODATA_EDITION, DEFAULT_NFE_TOLERANCE_EV, PhysicsInputError, zoneBoundaryEnergyEv, type Verdict } from "~/domain/physics";
 
 // The interactive nearly-free-electron check: its query string (a GET form, so it works without JavaScript and
 // every result has an address) read into the physics module's inputs, and the result as plain data.
@@ -146,6 +146,8 @@ export function nfeQueryOf(v: NfeFormValues): URLSearchParams {
   return params;
 }
 
+const sentence = (message: string) => `${message.charAt(0).toUpperCase()}${message.slice(1)}.`;
+
 /** Runs the check for the page: the same physics module as the API and the command line. */
 export function runNfePage(params: URLSearchParams): NfePageData {
   const { values, errors, input } = readNfeQuery(params);
@@ -178,6 +180,8 @@ export function runNfePage(params: URLSearchParams): NfePageData {
     };
   } catch (e) {
     if (!(e instanceof RangeError)) throw e;
-    return { values, errors: { form: e.message }, result: null };
+    // A period or mass too small for double precision is wrong at that field; other refusals concern the whole form.
+    const field = e instanceof PhysicsInputError && (e.field === "period" || e.field === "mass") ? e.field : "form";
+    return { values, errors: { [field]: sentence(e.message) }, result: null };
   }
 }

@@ -11,7 +11,7 @@ import { endMembersOf, loadCheckQuantities, materialById, materialByName, materi
 
 async function reportFor(ex: Executor, origin: CheckReport["origin"], material: MaterialRow, subject: CheckValue): Promise<CheckReport> {
   const [values, quantities, endMembers] = await Promise.all([materialCheckValues(ex, material.id), loadCheckQuantities(ex), endMembersOf(ex, material)]);
-  return buildCheckReport({ origin, material: { key: material.key, name: material.name, kind: material.kind }, subject, values, quantities, endMembers });
+  return buildCheckReport({ origin, material: { key: material.key, name: material.name, kind: material.kind, structure: material.structure }, subject, values, quantities, endMembers });
 }
 
 async function recordRef(ex: Executor, recordId: number) {

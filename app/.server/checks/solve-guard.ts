@@ -3,8 +3,9 @@ import { env } from "../env";
 import { countHitInProcess } from "../rate-limit";
 
 // The central-equation solves are CPU work a caller chooses the size of (within the plane-wave cap), so each
-// person has a per-minute budget of them whatever token or page asks, and each app process takes only so many
-// check requests at once; the rest are told to come back instead of queueing behind the CPU.
+// person has a per-minute budget of them whatever token or page asks (counted by the cluster's primary, so it holds
+// across worker processes), and each worker process takes only so many check requests at once; the rest are told to
+// come back instead of queueing behind the CPU.
 
 const WINDOW_SECONDS = 60;
 let inFlight = 0;
@@ -20,7 +21,7 @@ export class SolveRefused extends Error {
 /** Runs one check request's solves for `userId`, or throws SolveRefused (429 past the user's budget, 503 when the process is full). */
 export async function guardSolve<T>(userId: number, run: () => T | Promise<T>): Promise<T> {
   const limit = env().BANDLEDGER_CHECK_RATE_PER_MINUTE;
-  const { count, secondsLeft } = countHitInProcess(`solve:user:${userId}`, WINDOW_SECONDS);
+  const { count, secondsLeft } = await countHitInProcess(`solve:user:${userId}`, WINDOW_SECONDS);
   if (count > limit) {
     throw new SolveRefused({ status: 429, retryAfterSeconds: secondsLeft, message: `More than ${limit} physics checks a minute from your account (all its tokens and pages together); try again in ${secondsLeft} s.` });
   }

@@ -4,6 +4,9 @@ import type mysql from "mysql2/promise";
 // (The triggers of the append-only migration refuse UPDATE and DELETE as well, for every account.)
 export const APPEND_ONLY_TABLES = ["audit_log", "revisions", "releases", "release_items"] as const;
 
+// The migrator's own record of what has been applied: the runtime account reads it, never edits it.
+const MIGRATIONS_TABLE = "__drizzle_migrations";
+
 export type RuntimeAccount = { user: string; host: string };
 
 const quoteName = (name: string) => "`" + name.replace(/`/g, "``") + "`";
@@ -17,7 +20,7 @@ export async function grantRuntimeRights(connection: mysql.Connection, database:
   await connection.query(`GRANT SELECT, INSERT ON ${exactDatabase(database)}.* TO ${to}`);
   const [rows] = await connection.query("SELECT table_name AS name FROM information_schema.tables WHERE table_schema = ? AND table_type = 'BASE TABLE'", [database]);
   for (const { name } of rows as { name: string }[]) {
-    if ((APPEND_ONLY_TABLES as readonly string[]).includes(name)) continue;
+    if ((APPEND_ONLY_TABLES as readonly string[]).includes(name) || name === MIGRATIONS_TABLE) continue;
     await connection.query(`GRANT UPDATE, DELETE ON ${db}.${quoteName(name)} TO ${to}`);
   }
 }

@@ -1,2 +1,1 @@
-export * from "./compute";
 export * from "./load";

@@ -5,7 +5,7 @@ import { endMembersOf, materialByName, materialCheckValues } from "../checks/inp
 import { db } from "../db/client";
 import { materials, quantities, records } from "../db/schema";
 import type { Executor } from "../registry/executor";
-import { deriveMaterialValues, type DerivedInputs, type DerivedValuesData } from "./compute";
+import { deriveMaterialValues, type DerivedInputs, type DerivedValuesData } from "~/domain/derived";
 
 export const DERIVED_DEFAULT_TEMPERATURE_K = 300;
 export const DERIVED_MAX_TEMPERATURE_K = 2000;
@@ -44,7 +44,11 @@ export function parseDerivedSearch(params: URLSearchParams): { form: DerivedForm
   };
 }
 
-async function substrateCandidates(ex: Executor, exceptId: number): Promise<DerivedInputs["substrates"]> {
+/**
+ * Binaries and elements with a current lattice constant at 300 K. `valuesOf` says whose values to read: every one's
+ * (an alloy's page picks the substrate its composition matches), or only the one asked for (a binary's mismatch).
+ */
+async function substrateCandidates(ex: Executor, exceptId: number, valuesOf: "all" | string | null): Promise<DerivedInputs["substrates"]> {
   const rows = await ex
     .selectDistinct({ id: materials.id, key: materials.key, name: materials.name, kind: materials.kind })
     .from(materials)
@@ -53,8 +57,13 @@ async function substrateCandidates(ex: Executor, exceptId: number): Promise<Deri
     .where(and(ne(materials.kind, "alloy"), ne(materials.id, exceptId), eq(quantities.key, "lattice_a"), eq(records.status, "active"), eq(records.temperatureK, "300.000")))
     .orderBy(asc(materials.key));
   // In parallel: the pool spreads the per-substrate reads over its connections instead of one after another.
-  const out = await Promise.all(rows.map(async (m) => ({ material: { key: m.key, name: m.name, kind: m.kind }, values: await materialCheckValues(ex, m.id) })));
-  return out.filter((s) => s.values.some((v) => v.quantityKey === "lattice_a" && v.temperatureK !== null && Number(v.temperatureK) === 300));
+  const out = await Promise.all(rows.map(async (m) => ({
+    material: { key: m.key, name: m.name, kind: m.kind },
+    values: valuesOf === "all" || valuesOf === m.key ? await materialCheckValues(ex, m.id) : null,
+  })));
+  return out
+    .filter((s) => s.values === null || s.values.some((v) => v.quantityKey === "lattice_a" && v.temperatureK !== null && Number(v.temperatureK) === 300))
+    .map((s) => ({ material: s.material, values: s.values ?? [] }));
 }
 
 export type DerivedValuesPage = { derived: DerivedValuesData; form: DerivedForm };
@@ -70,14 +79,15 @@ export async function loadDerivedValues(materialKey: string, params: URLSearchPa
   const [values, endMembers, substrates] = await Promise.all([
     materialCheckValues(ex, material.id),
     endMembersOf(ex, material),
-    material.kind === "alloy" ? substrateCandidates(ex, material.id) : Promise.resolve([]),
+    substrateCandidates(ex, material.id, material.kind === "alloy" ? "all" : request.substrateKey),
   ]);
   const derived = deriveMaterialValues(
     {
       material: { key: material.key, name: material.name, kind: material.kind, formula: material.formula, compositionVariable: material.compositionVariable },
       values, endMembers: endMembers ?? null, substrates,
     },
-    { temperatureK: request.temperatureK, composition: request.composition, substrateKey: request.substrateKey },
+    // The page draws a straight line where a bowing parameter is missing (and says so at the value), so it asks for it.
+    { temperatureK: request.temperatureK, composition: request.composition, substrateKey: request.substrateKey, defaultSubstrate: true, linearWhereBowingMissing: true },
   );
   if (request.substrateKey && derived.substrateKey !== request.substrateKey) request.form.errors.substrate = "Choose one of the substrates listed.";
   return { derived, form: request.form };

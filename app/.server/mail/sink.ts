@@ -28,6 +28,8 @@ export async function startSink(options: { port: number; dir: string; host?: str
     server.once("error", reject);
     server.listen(options.port, options.host ?? "127.0.0.1", () => resolve());
   });
+  // A sender that goes away mid-message (an app process killed by a test) is its own problem, not the sink's.
+  server.on("error", () => undefined);
   const address = server.server.address();
   const port = typeof address === "object" && address ? address.port : options.port;
   return { port, dir: options.dir, close: () => new Promise<void>((r) => server.close(() => r())) };

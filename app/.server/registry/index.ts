@@ -1,6 +1,10 @@
 export * from "./catalogue";
 export * from "./errors";
 export type * from "./executor";
-export * from "./queries";
+export * from "./listing";
+export * from "./material-page";
+export * from "./record-page";
 export * from "./records";
+export * from "./revision-rows";
+export * from "./source-pages";
 export * from "./sources";

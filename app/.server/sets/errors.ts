@@ -1,4 +1,4 @@
-export type SetErrorCode = "not_found" | "forbidden" | "conflict" | "invalid" | "not_eligible";
+export type SetErrorCode = "not_found" | "forbidden" | "conflict" | "invalid" | "not_eligible" | "invalid_request";
 
 /** A refusal of the set services; `status` is the HTTP status the API and the pages answer with. */
 export class SetError extends Error {
@@ -13,7 +13,7 @@ export class SetError extends Error {
   }
 
   get status(): number {
-    return { not_found: 404, forbidden: 403, conflict: 409, invalid: 422, not_eligible: 422 }[this.code];
+    return { not_found: 404, forbidden: 403, conflict: 409, invalid: 422, not_eligible: 422, invalid_request: 400 }[this.code];
   }
 }
 

@@ -15,7 +15,17 @@ import { decisionNotice } from "./notice-templates";
 import { deliverImmediate, publicLink, queueNotices } from "./notices";
 import { affectedRows, proposalPath, staleError } from "./proposals";
 
-type Actor = Pick<CurrentUser, "id" | "email" | "name">;
+type Actor = Pick<CurrentUser, "id" | "email" | "name" | "role" | "leadFamilyIds">;
+
+/** Who decides a proposal in place of its author (four-eyes rule), worded for the author's own role. */
+export function ownProposalMessage(author: Pick<CurrentUser, "role" | "leadFamilyIds">, family: { id: number; name: string } | null): string {
+  const name = family?.name ?? "the material's family";
+  if (author.role === "admin") return `You wrote this proposal: a lead of ${name} or another admin decides it (four-eyes rule).`;
+  if (author.role === "lead" && family !== null && author.leadFamilyIds.includes(family.id)) {
+    return `You wrote this proposal: another lead of ${name} or an admin decides it (four-eyes rule).`;
+  }
+  return `You wrote this proposal: a lead of ${name} or an admin decides it, and the decision comes to you by e-mail.`;
+}
 
 export type DecisionInput = { decision: "approve" | "reject"; version: number; reason?: string | null };
 export type DecisionResult = { state: "approved" | "rejected"; recordId: number | null; resultRevisionId: number | null };
@@ -79,7 +89,10 @@ export async function decideProposal(actor: Actor, id: number, input: DecisionIn
         if (!facts) throw new WorkflowError("not_found", "There is no such proposal.");
         const row = facts.row;
         if (row.state !== "submitted") throw await notDecidableError(tx, row);
-        if (row.authorId === actor.id) throw new WorkflowError("own_proposal", "You wrote this proposal: another lead of the family decides it (four-eyes rule).");
+        if (row.authorId === actor.id) {
+          const family = facts.material ? { id: facts.material.familyId, name: facts.material.familyName } : null;
+          throw new WorkflowError("own_proposal", ownProposalMessage(actor, family));
+        }
         if (!facts.material || !(await mayDecide(tx, actor.id, facts.material.familyId))) {
           throw new WorkflowError("forbidden", `Only a lead of ${facts.material?.familyName ?? "the material's family"} or an admin decides this proposal.`);
         }

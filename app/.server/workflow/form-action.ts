@@ -4,7 +4,7 @@ import { getOptionalUser, hasRole, forbidden } from "../permissions";
 import { redirectWithFlash } from "../session";
 import { readLimitedFormData, StorageError } from "../storage";
 import { isWorkflowError, statusOf } from "./errors";
-import { createDraft, saveDraft, submitProposal } from "./proposals";
+import { createDraft, draftSavedAt, saveDraft, submitProposal } from "./proposals";
 import { stashPayload } from "./stash";
 
 // A proposal form with a pasted BibTeX entry and long notes stays far below this.
@@ -67,6 +67,8 @@ export async function proposalFormAction(request: Request, draftId: number | nul
     return redirectWithFlash(request, `/proposals/${id}/edit`, { kind: "ok", message: "Draft saved." });
   } catch (e) {
     if (!isWorkflowError(e)) throw e;
-    return data(result({ intent, proposalId: id, payload, errors: e.details.fieldErrors ?? {}, message: e.message }), { status: statusOf(e) });
+    // A refused submission has saved what was typed first: the answer says when, so the form can say so.
+    const savedAt = id !== null ? await draftSavedAt(user, id) : null;
+    return data(result({ intent, proposalId: id, payload, errors: e.details.fieldErrors ?? {}, message: e.message, savedAt: savedAt?.toISOString() ?? null }), { status: statusOf(e) });
   }
 }

@@ -38,6 +38,15 @@ export function decisionNotice(p: ProposalSummary, decision: "approved" | "rejec
   return { kind: `proposal.${decision}`, subject: clip(`${decision === "approved" ? "Approved" : "Rejected"}: ${p.title}`, 200), bodyText: lines.join("\n"), link };
 }
 
+export function rebaseNotice(p: ProposalSummary, authorName: string, from: string, to: string, link: string): NoticeContent {
+  return {
+    kind: "proposal.rebased",
+    subject: clip(`Rebased: ${p.title}`, 200),
+    bodyText: `${authorName} rebased a proposal waiting for your review on the record's current value.\n${p.title}\nNow based on ${to} (it was based on ${from}).\n${p.change}\nLook at it again before you decide.`,
+    link,
+  };
+}
+
 export function commentNotice(p: ProposalSummary, commenterName: string, body: string, link: string): NoticeContent {
   return {
     kind: "proposal.comment",

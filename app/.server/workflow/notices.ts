@@ -18,11 +18,14 @@ export function publicLink(pathname: string): string {
 export async function queueNotices(ex: Executor, userIds: number[], content: NoticeContent): Promise<number[]> {
   const unique = [...new Set(userIds)];
   if (unique.length === 0) return [];
-  const rows = await ex
-    .insert(notices)
-    .values(unique.map((userId) => ({ userId, kind: content.kind, subject: content.subject, bodyText: content.bodyText, link: content.link })))
-    .$returningId();
-  return rows.map((r) => Number(r.id));
+  // One INSERT per person: a multi-row INSERT reports only its first id, and on a Galera cluster the others are not
+  // first + 1, first + 2 (auto-increment steps by the cluster size), so they cannot be derived from it.
+  const ids: number[] = [];
+  for (const userId of unique) {
+    const [{ id }] = await ex.insert(notices).values({ userId, kind: content.kind, subject: content.subject, bodyText: content.bodyText, link: content.link }).$returningId();
+    ids.push(Number(id));
+  }
+  return ids;
 }
 
 /**

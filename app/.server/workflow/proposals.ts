@@ -9,8 +9,8 @@ import { parseBibtexEntry } from "../registry/bibtex";
 import type { Executor, Tx } from "../registry/executor";
 import { loadProposalCatalogue } from "./catalogue";
 import { WorkflowError } from "./errors";
-import { loadOneFact, summaryOf, type ProposalFacts } from "./facts";
-import { commentNotice, submittedNotice } from "./notice-templates";
+import { loadOneFact, summaryOf, withUnit, type ProposalFacts } from "./facts";
+import { commentNotice, rebaseNotice, submittedNotice } from "./notice-templates";
 import { deliverImmediate, publicLink, queueNotices } from "./notices";
 
 export const proposalPath = (id: number) => `/proposals/${id}`;
@@ -106,6 +106,16 @@ export async function saveDraft(actor: Actor, id: number, raw: unknown): Promise
   const savedAt = new Date();
   await db().update(proposals).set({ payload, ...ids, updatedAt: savedAt }).where(and(eq(proposals.id, id), eq(proposals.state, "draft")));
   return { savedAt, payload };
+}
+
+/** When the author's draft was last saved, or null when it is not (or no longer) their draft. */
+export async function draftSavedAt(actor: Actor, id: number): Promise<Date | null> {
+  const [row] = await db()
+    .select({ updatedAt: proposals.updatedAt })
+    .from(proposals)
+    .where(and(eq(proposals.id, id), eq(proposals.authorId, actor.id), eq(proposals.state, "draft")))
+    .limit(1);
+  return row?.updatedAt ?? null;
 }
 
 /** The leads a submitted proposal goes to: every lead of its family but its author; admins when no one else leads it. */
@@ -235,13 +245,27 @@ export async function rebaseProposal(actor: Actor, id: number, version: number, 
   if (!record) throw new WorkflowError("invalid", "The record of this proposal no longer exists.");
   if (kind === "retirement" && record.status === "retired") throw new WorkflowError("state", "The record has been retired meanwhile; withdraw this proposal.");
   const from = facts.row.baseRevisionId;
-  const result = await db()
-    .update(proposals)
-    .set({ kind, recordId, baseRevisionId: record.currentRevisionId, payload, version: sql`${proposals.version} + 1`, updatedAt: sql`NOW(3)` })
-    .where(and(eq(proposals.id, id), eq(proposals.version, version), eq(proposals.authorId, actor.id), inArray(proposals.state, ["draft", "submitted"])));
-  if (affectedRows(result) === 0) throw new WorkflowError("changed", "The proposal changed since this page was loaded; look at it again before you rebase.");
+  const noticeIds = await db().transaction(async (tx) => {
+    const result = await tx
+      .update(proposals)
+      .set({ kind, recordId, baseRevisionId: record.currentRevisionId, payload, version: sql`${proposals.version} + 1`, updatedAt: sql`NOW(3)` })
+      .where(and(eq(proposals.id, id), eq(proposals.version, version), eq(proposals.authorId, actor.id), inArray(proposals.state, ["draft", "submitted"])));
+    if (affectedRows(result) === 0) throw new WorkflowError("changed", "The proposal changed since this page was loaded; look at it again before you rebase.");
+    // A submitted proposal was noticed to the leads it goes to; they hear of the new base the same way (a draft told no one).
+    const rebased = await loadOneFact(tx, id);
+    if (!rebased || rebased.row.state !== "submitted" || !rebased.material) return [];
+    const reviewers = await reviewersOf(tx, rebased.material.familyId, rebased.row.authorId);
+    return queueNotices(tx, reviewers, rebaseNotice(summaryOf(rebased), actor.name, baseText(facts), baseText(rebased), publicLink(proposalPath(id))));
+  });
   await audit(actor, "proposal.rebase", { type: "proposal", id }, request, { fromRevisionId: from, toRevisionId: record.currentRevisionId, recordId });
+  await deliverImmediate(noticeIds);
   return { baseRevisionId: record.currentRevisionId };
+}
+
+// The value a proposal is based on, as a notice states it: "1.4225 eV", "retired", or "no value" for a new record.
+function baseText(f: ProposalFacts): string {
+  if (!f.baseValue) return "no value (a new record)";
+  return f.baseValue.kind === "retirement" ? "the retirement of the record" : withUnit(f.baseValue.value, f.quantity?.canonicalUnit);
 }
 
 /** Whether a person takes part in a proposal: its author, a lead of its family, an admin, or a commenter. */

@@ -1,12 +1,15 @@
 import { and, asc, desc, eq, inArray } from "drizzle-orm";
 import { shortSourceLabel, formatCslReference } from "~/domain/citations";
-import { conditionsLabel, emptyPayload, validateProposal, type ProposalPayload, type ReviewQueueRow, type RevisionCardData } from "~/domain/proposal-schemas";
+import { conditionsLabel, emptyPayload, validateProposal, type ProposalPayload, type ReviewQueueRow } from "~/domain/proposal-schemas";
+import { METHOD_KEYS, type Method } from "~/domain/registry-schemas";
+import type { RevisionView, SourceRef } from "~/domain/revision-view";
 import { db } from "../db/client";
 import { attachments, materials, proposalComments, proposals, users } from "../db/schema";
 import { hasRole, type CurrentUser } from "../permissions";
 import { parseBibtexEntry } from "../registry/bibtex";
-import { loadRecord, type RevisionView } from "../registry/queries";
+import { loadRecord } from "../registry/record-page";
 import { loadProposalCatalogue } from "./catalogue";
+import { ownProposalMessage } from "./decide";
 import { WorkflowError } from "./errors";
 import { loadFacts, loadOneFact, summaryOf, withUnit, type ProposalFacts } from "./facts";
 import { checkReportForProposal } from "../checks/report";
@@ -14,51 +17,47 @@ import { isInvolved } from "./proposals";
 
 type Actor = Pick<CurrentUser, "id" | "email" | "name" | "role" | "leadFamilyIds">;
 
-function cardOfRevision(r: RevisionView, unit: string): RevisionCardData {
-  return {
-    revisionId: r.id, seq: r.seq, retirement: r.kind === "retirement", value: r.value, unit, inputValue: r.inputValue, inputUnit: r.inputUnit,
-    significantDigits: r.significantDigits, uncertainty: r.uncertainty, method: r.method, source: r.source, locator: r.locator, notes: r.notes,
-    potentialCoefficients: r.potentialCoefficients, periodAngstrom: r.periodAngstrom, validFromK: r.validFromK, validToK: r.validToK,
-    proposedBy: r.proposedBy, approvedBy: r.approvedBy, proposedAt: r.proposedAt, approvedAt: r.approvedAt,
-  };
-}
-
 /** The source as typed in a proposal, described the way the registry describes stored ones. */
-function sourceOfPayload(p: ProposalPayload): RevisionCardData["source"] {
+function sourceOfPayload(p: ProposalPayload): SourceRef | null {
   const s = p.source;
   if (s.kind === "bibtex") {
     if (!s.bibtex.trim()) return null;
     const parsed = parseBibtexEntry(s.bibtex);
-    if (!parsed.ok) return { kind: "bibtex", label: "BibTeX entry (unreadable)", title: parsed.message, reference: "", doi: null, reportNumber: null };
+    if (!parsed.ok) return { id: null, kind: "bibtex", label: "BibTeX entry (unreadable)", title: parsed.message, reference: "", doi: null, reportNumber: null };
     const e = parsed.entry;
-    return { kind: "bibtex", label: shortSourceLabel({ kind: "bibtex", title: e.title, authors: e.authors, year: e.year, doi: e.doi, reportNumber: null }), title: e.title, reference: formatCslReference(e.csl), doi: e.doi, reportNumber: null };
+    return { id: null, kind: "bibtex", label: shortSourceLabel({ kind: "bibtex", title: e.title, authors: e.authors, year: e.year, doi: e.doi, reportNumber: null }), title: e.title, reference: formatCslReference(e.csl), doi: e.doi, reportNumber: null };
   }
   const id = (s.kind === "doi" ? s.doi : s.reportNumber).trim();
   if (!id && !s.title.trim()) return null;
   const year = Number.parseInt(s.year, 10);
   const summary = { kind: s.kind, title: s.title.trim() || id, authors: s.authors.trim() || null, year: Number.isFinite(year) ? year : null, doi: s.kind === "doi" ? id : null, reportNumber: s.kind === "report" ? id : null };
   return {
-    kind: s.kind, label: shortSourceLabel(summary), title: summary.title, reference: [summary.authors, summary.year ? `(${summary.year})` : null].filter(Boolean).join(" "),
+    id: null, kind: s.kind, label: shortSourceLabel(summary), title: summary.title, reference: [summary.authors, summary.year ? `(${summary.year})` : null].filter(Boolean).join(" "),
     doi: summary.doi, reportNumber: summary.reportNumber,
   };
 }
 
-async function proposedCard(f: ProposalFacts): Promise<RevisionCardData | null> {
+const methodOf = (text: string): Method | null => ((METHOD_KEYS as readonly string[]).includes(text) ? (text as Method) : null);
+
+/** The revision a proposal would add, as the registry will show it once approved. */
+async function proposedRevision(f: ProposalFacts): Promise<RevisionView> {
   const p = f.payload;
   const unit = f.quantity?.canonicalUnit ?? "";
   const check = validateProposal(p, await loadProposalCatalogue());
   const prepared = check.ok ? check.proposal.prepared : null;
+  const retirement = f.row.kind === "retirement";
   return {
-    revisionId: f.row.resultRevisionId, seq: null, retirement: f.row.kind === "retirement",
-    value: f.row.kind === "retirement" ? null : prepared?.value ?? f.row.proposedValue ?? (p.value.trim() || null),
-    unit: prepared ? unit : f.row.kind === "retirement" ? unit : p.unit,
+    id: f.row.resultRevisionId, recordId: f.record?.id ?? null, seq: null, kind: retirement ? "retirement" : "value", state: "proposed",
+    value: retirement ? null : prepared?.value ?? f.row.proposedValue ?? (p.value.trim() || null),
+    unit: prepared || retirement ? unit : p.unit,
     inputValue: p.value.trim() || null, inputUnit: p.unit.trim() || null, significantDigits: prepared?.significantDigits ?? null,
-    uncertainty: prepared?.uncertainty ?? (p.uncertainty.trim() || null), method: p.method || null, source: sourceOfPayload(p),
-    locator: p.locator.trim() || null, notes: f.row.kind === "retirement" ? p.reason.trim() || null : p.notes.trim() || null,
+    uncertainty: prepared?.uncertainty ?? (p.uncertainty.trim() || null), method: methodOf(p.method), source: sourceOfPayload(p),
+    locator: p.locator.trim() || null, notes: retirement ? p.reason.trim() || null : p.notes.trim() || null,
     potentialCoefficients: prepared?.potentialCoefficients ?? null, periodAngstrom: prepared?.periodAngstrom ?? null,
     validFromK: prepared?.validFromK ?? null, validToK: prepared?.validToK ?? null,
     proposedBy: f.authorName, approvedBy: f.deciderName && f.row.state === "approved" ? f.deciderName : null,
     proposedAt: f.row.submittedAt?.toISOString() ?? null, approvedAt: f.row.state === "approved" ? f.row.decidedAt?.toISOString() ?? null : null,
+    proposalId: f.row.id,
   };
 }
 
@@ -90,7 +89,7 @@ export async function loadProposalPage(actor: Actor, id: number) {
   const familyLead = actor.role === "admin" || (actor.role === "lead" && f.material !== null && actor.leadFamilyIds.includes(f.material.familyId));
   let decideBlocked: string | null = null;
   if (f.row.state !== "submitted") decideBlocked = f.row.state === "draft" ? "This is a draft; it is decided once its author submits it." : null;
-  else if (author) decideBlocked = "You wrote this proposal: another lead of the family decides it (four-eyes rule).";
+  else if (author) decideBlocked = ownProposalMessage(actor, f.material ? { id: f.material.familyId, name: f.material.familyName } : null);
   else if (!familyLead) decideBlocked = `Only a lead of ${f.material?.familyName ?? "its family"} or an admin decides this proposal.`;
   const summary = summaryOf(f);
   // A stale new-record proposal is compared with the record that now exists.
@@ -119,10 +118,10 @@ export async function loadProposalPage(actor: Actor, id: number) {
     decidedAt: f.row.decidedAt?.toISOString() ?? null,
     resultRevisionId: f.row.resultRevisionId,
     batchId: f.row.batchId,
-    current: beside ? cardOfRevision(beside, unit) : null,
+    current: beside,
     currentRole: approved ? ("replaced" as const) : ("current" as const),
-    base: !approved && baseRevision && baseRevision.id !== current?.id ? cardOfRevision(baseRevision, unit) : null,
-    proposed: await proposedCard(f),
+    base: !approved && baseRevision && baseRevision.id !== current?.id ? baseRevision : null,
+    proposed: await proposedRevision(f),
     stale: f.stale
       ? {
           currentRevisionId: current?.id ?? null,
@@ -202,7 +201,7 @@ export type ProposalFormRecord = {
   quantityName: string;
   conditions: string;
   unit: string;
-  current: RevisionCardData | null;
+  current: RevisionView | null;
 };
 
 async function formRecord(recordId: number): Promise<ProposalFormRecord | null> {
@@ -212,7 +211,7 @@ async function formRecord(recordId: number): Promise<ProposalFormRecord | null> 
   const current = r.revisions.find((x) => x.id === r.currentRevisionId) ?? null;
   return {
     id: r.id, status: r.status, materialKey: page.material.key, materialName: page.material.name, quantityKey: r.quantity.key, quantityName: r.quantity.name,
-    conditions: conditionsLabel(r.quantity.key, r), unit: r.quantity.canonicalUnit, current: current ? cardOfRevision(current, r.quantity.canonicalUnit) : null,
+    conditions: conditionsLabel(r.quantity.key, r), unit: r.quantity.canonicalUnit, current,
   };
 }
 
@@ -239,7 +238,7 @@ export async function loadProposalForm(actor: Actor, from: { draftId: number } |
     payload.recordId = String(record.id);
     payload.material = record.materialKey;
     payload.quantity = record.quantityKey;
-    if (record.current && !record.current.retirement) payload.unit = record.current.inputUnit ?? record.unit;
+    if (record.current && record.current.kind !== "retirement") payload.unit = record.current.inputUnit ?? record.unit;
   }
   return { catalogue, payload, proposalId: null, kind: from.kind, record, stale: false, version: 0, savedAt: null, attachments: [] as { id: number; fileName: string; sizeBytes: number }[] };
 }

@@ -1,5 +1,5 @@
 import { toDecimalString } from "../../domain/decimal";
-import { type FourierCoefficient, checkNfeGap } from "../../domain/physics";
+import { type FourierCoefficient, type NfeCheck, PhysicsInputError, checkNfeGap } from "../../domain/physics";
 import { LENGTH_ANGSTROM, convertToCanonical } from "../../domain/units";
 import { type Command, UsageError } from "../command";
 import { type Values, noPositionals, optionalNumber, parseNumber, parseOptions, requiredNumber } from "../args";
@@ -16,7 +16,22 @@ Nearly-free-electron check (central equation, one dimension) of a stated gap.
   --mass          band mass in m0; default 1
   --stated        the stated gap in eV, checked against the central equation
   --tolerance     eV; default 0.01 (pass ≤ tol, warn ≤ 3·tol, fail beyond)
-  --json          print JSON instead of a table`;
+  --json          print JSON instead of a table
+Exit 0 converged, 2 wrong arguments (or a period or mass too small for double precision), 4 not converged within
+the plane-wave cap: the numbers are printed, but they are the last basis's, not a converged result.`;
+
+/** The central equation hit the plane-wave cap before it converged: the printed gap is not a converged result. */
+export const EXIT_NOT_CONVERGED = 4;
+
+// The physics names the input it refuses ("period", "mass"); the command line names the option.
+function runCheck(input: Parameters<typeof checkNfeGap>[0]): NfeCheck {
+  try {
+    return checkNfeGap(input);
+  } catch (e) {
+    if (e instanceof PhysicsInputError) throw new UsageError(`--${e.field}: ${e.message}`);
+    throw e;
+  }
+}
 
 const options = {
   period: { type: "string" },
@@ -71,8 +86,9 @@ export const nfeCommand: Command = {
     const toleranceEv = optionalNumber(values, "tolerance", 0.01, { positive: true });
     if (values.tolerance !== undefined && statedGapEv === null) throw new UsageError("--tolerance needs --stated");
 
-    const check = checkNfeGap({ periodAngstrom, coefficients, gapIndex, massM0, statedGapEv, toleranceEv });
+    const check = runCheck({ periodAngstrom, coefficients, gapIndex, massM0, statedGapEv, toleranceEv });
     const { firstOrder, centralEquation: central } = check;
+    const exitCode = central.converged ? 0 : EXIT_NOT_CONVERGED;
     if (values.json) {
       printJson(io, {
         gap: gapIndex,
@@ -82,11 +98,12 @@ export const nfeCommand: Command = {
           lowerEv: toDecimalString(central.lowerEv),
           upperEv: toDecimalString(central.upperEv),
           planeWaves: central.planeWaves,
+          converged: central.converged,
         },
         verdict: check.verdict,
       });
       for (const note of check.notes) io.stderr(`note: ${note}\n`);
-      return 0;
+      return exitCode;
     }
     io.stdout(
       `Nearly-free-electron check, gap ${gapIndex} at k = ${check.kPiOverA === 1 ? "π/a" : "0"}` +
@@ -108,7 +125,7 @@ export const nfeCommand: Command = {
       ["verdict", check.verdict],
     ]);
     for (const note of check.notes) io.stdout(`note: ${note}\n`);
-    return 0;
+    return exitCode;
   },
 };
 

@@ -1,106 +1,34 @@
-import { randomBytes, createHash } from "node:crypto";
-import { rename, rm, writeFile } from "node:fs/promises";
-import path from "node:path";
-import { verifyReleaseText, type ReleaseFormat } from "../../domain/release-format";
+import type { ReleaseFormat } from "../../domain/release-format";
 import { type Command, type Io, UsageError } from "../command";
 import { parseOptions } from "../args";
+import { COMPRESSIONS, fetchVerifiedRelease, ReleaseFailure, SERVER_USAGE, serverFrom, serverOptions, writeWhole, type Compression, type ReleaseMeta, type Server } from "../release-download";
+import { parseReleaseRef, RELEASE_REF_EXAMPLE, RELEASE_REF_FORM, type ReleaseRef } from "../release-ref";
 
-/** The download did not match the release's hash: nothing was written. */
-export const EXIT_MISMATCH = 3;
-/** The server or the network refused (unknown set, bad token, no answer). */
-export const EXIT_FAILED = 1;
+export { EXIT_FAILED, EXIT_MISMATCH } from "../release-download";
 
-const usage = `usage: bandledger pull <set>@<release> --out <file> [--format json|csv] [--url URL] [--token TOKEN]
+const usage = `usage: bandledger pull ${RELEASE_REF_FORM} --out <file> [--format json|csv] [--compression auto|br|gzip|none] [--url URL] [--token TOKEN]
 
 Downloads a frozen release, verifies it and writes it only when every check holds.
-  <set>@<release>  the set's short name and release number, e.g. hemt-baseline@3
+  ${RELEASE_REF_FORM}  the set's short name and release number, e.g. ${RELEASE_REF_EXAMPLE}
   --out            where to write the file (written whole, through a temporary file and a rename)
   --format         json (default) or csv
-  --url            the Bandledger server; default $BANDLEDGER_URL or http://127.0.0.1:3000
-  --token          a personal API token; default $BANDLEDGER_TOKEN
-Checks: the release's hash from the API, the download's ETag and Repr-Digest, and the file's own hash recomputed
-from its canonical form. Exit 0 written, 1 server or network error, 2 wrong arguments, 3 hash mismatch (no file).`;
+  --compression    what to ask the server for: auto (default: brotli or gzip), br, gzip, or none
+${SERVER_USAGE}
+Checks: the release's hash from the API, the download's ETag and Repr-Digest (of the bytes as sent), the SHA-256
+of the decoded bytes, and the file's own hash recomputed from its canonical form. Exit 0 written, 1 server or network error, 2 wrong arguments, 3 hash mismatch (no file).`;
 
 const options = {
   out: { type: "string" },
   format: { type: "string" },
-  url: { type: "string" },
-  token: { type: "string" },
+  compression: { type: "string" },
+  ...serverOptions,
   help: { type: "boolean", short: "h" },
 } as const;
 
-class PullFailure extends Error {
-  constructor(readonly exitCode: number, message: string) {
-    super(message);
-  }
-}
-
-type ReleaseMeta = { number: number; sha256: string; csvSha256: string; itemCount: number; set: { slug: string; name: string } };
-
-async function apiMessage(response: Response): Promise<string> {
-  try {
-    const body = (await response.json()) as { error?: { message?: string } };
-    return body.error?.message ?? response.statusText;
-  } catch {
-    return response.statusText || `status ${response.status}`;
-  }
-}
-
-async function get(url: string, token: string): Promise<Response> {
-  try {
-    return await fetch(url, { headers: { Authorization: `Bearer ${token}`, "Accept-Encoding": "identity" }, redirect: "error" });
-  } catch (e) {
-    const cause = (e as { cause?: { code?: string; message?: string } }).cause;
-    throw new PullFailure(EXIT_FAILED, `cannot reach ${new URL(url).origin} (${cause?.code ?? cause?.message ?? (e as Error).message})`);
-  }
-}
-
-function parseTarget(text: string | undefined): { slug: string; number: number } {
-  const match = /^([a-z0-9]+(?:-[a-z0-9]+)*)@(\d{1,7})$/.exec(text ?? "");
-  if (!match || Number(match[2]) < 1) throw new UsageError(`name the release as <set>@<release>, e.g. hemt-baseline@3 (got "${text ?? ""}")`);
-  return { slug: match[1], number: Number(match[2]) };
-}
-
-export async function pullRelease(input: { slug: string; number: number; format: ReleaseFormat; baseUrl: string; token: string; out: string }): Promise<{ sha256: string; bytes: number; meta: ReleaseMeta }> {
-  const base = input.baseUrl.replace(/\/+$/, "");
-  const releasePath = `${base}/api/v1/sets/${encodeURIComponent(input.slug)}/releases/${input.number}`;
-  const metaResponse = await get(releasePath, input.token);
-  if (!metaResponse.ok) throw new PullFailure(EXIT_FAILED, `the server refused (${metaResponse.status}): ${await apiMessage(metaResponse)}`);
-  const meta = (await metaResponse.json()) as ReleaseMeta;
-  const download = await get(`${releasePath}/download?format=${input.format}`, input.token);
-  if (!download.ok) throw new PullFailure(EXIT_FAILED, `the download was refused (${download.status}): ${await apiMessage(download)}`);
-  const bytes = new Uint8Array(await download.arrayBuffer());
-  const expectedFileHash = input.format === "json" ? meta.sha256 : meta.csvSha256;
-  const mismatch = (why: string) => new PullFailure(EXIT_MISMATCH, `hash mismatch, nothing written: ${why}`);
-  const etag = download.headers.get("etag");
-  if (etag !== `"${expectedFileHash}"`) throw mismatch(`the ETag ${etag ?? "(none)"} is not the release's "${expectedFileHash}"`);
-  const digest = download.headers.get("repr-digest");
-  const bytesSha256 = createHash("sha256").update(bytes).digest();
-  if (digest && digest !== `sha-256=:${bytesSha256.toString("base64")}:`) throw mismatch("the bytes received are not the bytes the server sent (Repr-Digest)");
-  if (input.format === "csv" && bytesSha256.toString("hex") !== meta.csvSha256) throw mismatch("the CSV bytes do not hash to the release's csvSha256");
-  let text: string;
-  try {
-    text = new TextDecoder("utf-8", { fatal: true }).decode(bytes);
-  } catch {
-    throw mismatch("the download is not valid UTF-8");
-  }
-  const verified = await verifyReleaseText(text);
-  if (!verified.ok) throw mismatch(verified.reason);
-  if (verified.format !== input.format) throw mismatch(`asked for ${input.format}, received ${verified.format}`);
-  if (verified.sha256 !== meta.sha256) throw mismatch(`the file's content hash ${verified.sha256} is not the release's ${meta.sha256}`);
-  if (verified.content.set.slug !== input.slug || verified.content.release.number !== input.number) {
-    throw mismatch(`the file holds ${verified.content.set.slug} release ${verified.content.release.number}`);
-  }
-  const target = path.resolve(input.out);
-  const temporary = path.join(path.dirname(target), `.${path.basename(target)}.${randomBytes(6).toString("hex")}.part`);
-  try {
-    await writeFile(temporary, bytes, { flag: "wx" });
-    await rename(temporary, target);
-  } catch (e) {
-    await rm(temporary, { force: true });
-    throw new PullFailure(EXIT_FAILED, `cannot write ${input.out}: ${(e as Error).message}`);
-  }
-  return { sha256: meta.sha256, bytes: bytes.length, meta };
+export async function pullRelease(ref: ReleaseRef, format: ReleaseFormat, server: Server, out: string, compression: Compression = "auto"): Promise<{ sha256: string; bytes: number; encoding: string; meta: ReleaseMeta }> {
+  const release = await fetchVerifiedRelease(ref, format, server, compression);
+  await writeWhole(out, release.bytes);
+  return { sha256: release.meta.sha256, bytes: release.bytes.length, encoding: release.encoding, meta: release.meta };
 }
 
 export const pullCommand: Command = {
@@ -113,22 +41,21 @@ export const pullCommand: Command = {
       io.stdout(`${usage}\n`);
       return 0;
     }
-    if (positionals.length !== 1) throw new UsageError(positionals.length ? `unexpected argument "${positionals[1]}"` : "name the release to pull, e.g. hemt-baseline@3");
-    const { slug, number } = parseTarget(positionals[0]);
+    if (positionals.length !== 1) throw new UsageError(positionals.length ? `unexpected argument "${positionals[1]}"` : `name the release to pull, e.g. ${RELEASE_REF_EXAMPLE}`);
+    const ref = parseReleaseRef(positionals[0]);
     const out = values.out as string | undefined;
     if (!out) throw new UsageError("--out is required");
     const format = (values.format as string | undefined) ?? "json";
     if (format !== "json" && format !== "csv") throw new UsageError(`--format must be json or csv (got "${format}")`);
-    const token = (values.token as string | undefined) ?? process.env.BANDLEDGER_TOKEN;
-    if (!token) throw new UsageError("a token is needed: --token or BANDLEDGER_TOKEN (create one on your account page)");
-    const baseUrl = (values.url as string | undefined) ?? process.env.BANDLEDGER_URL ?? "http://127.0.0.1:3000";
-    if (!/^https?:\/\//.test(baseUrl)) throw new UsageError(`--url must start with http:// or https:// (got "${baseUrl}")`);
+    const compression = (values.compression as string | undefined) ?? "auto";
+    if (!(COMPRESSIONS as readonly string[]).includes(compression)) throw new UsageError(`--compression must be auto, br, gzip or none (got "${compression}")`);
+    const server = serverFrom(values);
     try {
-      const result = await pullRelease({ slug, number, format, baseUrl, token, out });
-      io.stdout(`ok ${out}: ${result.meta.set.name} release ${number}, ${result.meta.itemCount} values, sha256 ${result.sha256}\n`);
+      const result = await pullRelease(ref, format, server, out, compression as Compression);
+      io.stdout(`ok ${out}: ${result.meta.set.name} release ${ref.number}, ${result.meta.itemCount} values, sha256 ${result.sha256} (sent as ${result.encoding})\n`);
       return 0;
     } catch (e) {
-      if (e instanceof PullFailure) {
+      if (e instanceof ReleaseFailure) {
         io.stderr(`bandledger pull: ${e.message}\n`);
         return e.exitCode;
       }

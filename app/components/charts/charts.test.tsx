@@ -1,7 +1,7 @@
 import { renderToStaticMarkup } from "react-dom/server";
 import { describe, expect, it } from "vitest";
-import { bowedGapEv, centralEquationGap, crossoverComposition, nfeBands, varshniGap } from "~/domain/physics";
-import { CompositionChart, EkChart, TemperatureChart } from "./index";
+import { bandStructure, bowedGapEv, centralEquationGap, crossoverComposition, formFactorsFromRydberg, nfeBands, planeWaveBasis, varshniGap } from "~/domain/physics";
+import { BandStructureChart, CompositionChart, EkChart, TemperatureChart } from "./index";
 
 const count = (markup: string, tag: string) => (markup.match(new RegExp(`<${tag}[\\s>]`, "g")) ?? []).length;
 
@@ -76,5 +76,30 @@ describe("CompositionChart", () => {
     expect(count(markup, "path")).toBe(2);
     expect(markup).toContain(`crossover x = ${Number(crossing.toPrecision(4))}`);
     expect(markup).toContain("lattice match x = 0.3");
+  });
+});
+
+describe("BandStructureChart", () => {
+  // Silicon with the form factors of Cohen & Bergstresser, Phys. Rev. 141, 789 (1966) (from memory), on a small basis.
+  const basis = planeWaveBasis({ structure: "diamond", latticeAngstrom: 5.43, formFactorsEv: formFactorsFromRydberg({ S3: -0.21, S8: 0.04, S11: 0.08 }) }, 11);
+  const bands = bandStructure(basis, { count: 40 });
+  const props = { labels: bands.labels, distance: bands.points.map((p) => p.distance), energiesEv: bands.bandsEv };
+
+  it("draws the eight bands with the symmetry points as the axis, the gap shaded, the checked energies ringed", () => {
+    const markup = renderToStaticMarkup(<BandStructureChart {...props} gap={{ gapEv: 0.9, label: "Eg 0.900 eV (Δ)" }} marks={[{ label: "X", distance: bands.labels[2].distance, energyEv: 1.0 }]} title="Silicon bands" />);
+    expect(markup).toMatch(/^<svg[^>]*role="img"/);
+    expect(count(markup, "path")).toBe(8);
+    for (const label of ["L", "Γ", "X", "U|K"]) expect(markup).toContain(`>${label}</text>`);
+    expect(markup).toContain("Eg 0.900 eV (Δ)");
+    expect(markup).toContain("data-gap");
+    expect(count(markup, "circle")).toBe(1);
+    expect(markup).toMatch(/<title[^>]*>Silicon bands/);
+    expect(markup).toMatch(/<desc[^>]*>8 bands along L–Γ–X–U\|K–Γ/);
+    expect(markup).not.toMatch(/#[0-9a-f]{3,6}\b/i);
+  });
+
+  it("draws no shading for a gap that is not open", () => {
+    const markup = renderToStaticMarkup(<BandStructureChart {...props} gap={{ gapEv: 0, label: "Eg 0 eV" }} />);
+    expect(markup).not.toContain("data-gap");
   });
 });

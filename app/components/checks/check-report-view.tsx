@@ -1,5 +1,6 @@
 import type { ReactNode } from "react";
 import type { CheckInput, CheckReport, CheckResult, NfeDetail } from "~/domain/check-report";
+import type { EpmDetail } from "~/domain/check-report/epm";
 import { exact, readable, recordHref, smallFigure, withUnit } from "./format";
 import { NfePlot } from "./nfe-plot";
 import { VerdictBadge } from "./verdict-badge";
@@ -10,6 +11,7 @@ const KIND_LABEL: Record<CheckResult["kind"], string> = {
   varshni: "Varshni",
   kane: "Kane",
   bowing: "bowing",
+  epm: "pseudopotential",
 };
 
 function InputItem({ input, origin }: { input: CheckInput; origin: CheckReport["origin"] }) {
@@ -90,6 +92,22 @@ function NfeComparison({ nfe, stated }: { nfe: NfeDetail; stated: string | null 
   );
 }
 
+// The crystal the pseudopotential check computed, and a way to its band structure on the crystal check page.
+function EpmCrystal({ epm }: { epm: EpmDetail }) {
+  return (
+    <p className="mt-1 text-sm" data-epm-detail>
+      <span className="text-muted">computed </span>
+      <span className="figure font-mono">
+        Eg(Γ) {readable(epm.gaps.gamma)} · Eg(X) {readable(epm.gaps.x)} · Eg(L) {readable(epm.gaps.l)} eV
+      </span>
+      <span className="text-muted">; fundamental </span>
+      <span className="figure font-mono">{readable(epm.fundamental.gapEv)} eV ({epm.fundamental.valley})</span>
+      <span className="text-muted">; {epm.planeWaves} plane waves{epm.converged ? "" : ", not converged"} · </span>
+      <a href={`/checks/epm?${epm.query}`}>band structure in the crystal check</a>
+    </p>
+  );
+}
+
 function Summary({ result }: { result: CheckResult }) {
   const parts: ReactNode[] = [];
   if (result.stated) parts.push(<span key="s">{result.stated.label} <b className="figure font-mono font-medium">{withUnit(exact(result.stated.value), result.stated.unit)}</b></span>);
@@ -117,6 +135,7 @@ function ResultItem({ result, origin, plot }: { result: CheckResult; origin: Che
           </ul>
         ) : null}
         {result.nfe && plot ? <NfeComparison nfe={result.nfe} stated={result.stated?.value ?? null} /> : null}
+        {result.epm ? <EpmCrystal epm={result.epm} /> : null}
         <div className="mt-2 space-y-1 text-xs">
           <p>
             <span className="text-muted">formula </span>
@@ -170,6 +189,12 @@ export function CheckReportView({
       ) : report && !message ? (
         <p className="mt-2 text-sm text-muted">No consistency check applies to this value.</p>
       ) : null}
+      {report?.results.some((r) => r.kind === "epm") ? (
+        <p className="mt-2 rounded-[var(--radius-card)] border border-warn px-3 py-2 text-sm" data-epm-caution>
+          A local three-form-factor model reproduces the main gaps to about 0.1–0.3 eV (it is fitted to a few transitions), hence the wide tolerance:
+          it checks that form factors and gaps belong together, and does not replace measured values.
+        </p>
+      ) : null}
       {report && report.notRun.length ? (
         <div className="mt-2 border-t border-rule pt-2 text-sm">
           <p className="label">Not run</p>
@@ -182,7 +207,7 @@ export function CheckReportView({
       ) : null}
       {report ? (
         <p className="mt-3 text-xs text-muted">
-          Constants {report.codataEdition}. A check passes within its tolerance; the nearly-free-electron, Kane and bowing checks warn up to three times it, the Varshni check fails beyond it. Tolerances are set by an admin.
+          Constants {report.codataEdition}. A check passes within its tolerance; the nearly-free-electron, Kane, bowing and pseudopotential checks warn up to three times it, the Varshni check fails beyond it. Tolerances are set by an admin.
         </p>
       ) : null}
     </section>

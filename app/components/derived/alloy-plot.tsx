@@ -1,5 +1,5 @@
 import { CompositionChart } from "~/components/charts";
-import type { DerivedValuesData } from "~/.server/derived";
+import type { DerivedValuesData } from "~/domain/derived";
 
 /** Eg(x) across the alloy at the chosen temperature, the Γ crossover and the lattice match marked. */
 export function AlloyPlot({ plot, temperatureK, title }: { plot: NonNullable<DerivedValuesData["alloyPlot"]>; temperatureK: number; title: string }) {

@@ -1,55 +1,11 @@
 import { Form } from "react-router";
-import type { DerivedForm, DerivedNumber, DerivedValuesData } from "~/.server/derived";
-import { exact, readable, recordHref, withUnit } from "~/components/checks/format";
+import type { DerivedForm } from "~/.server/derived";
+import { derivedNumbersOf, evaluatedValueOf, type DerivedValuesData } from "~/domain/derived";
+import { readable } from "~/components/checks/format";
 import { FieldError, invalidProps } from "~/components/field-error";
 import { AlloyPlot } from "./alloy-plot";
+import { DerivedTable } from "./derived-table";
 import { TemperaturePlot } from "./temperature-plot";
-
-function Inputs({ item }: { item: DerivedNumber }) {
-  return (
-    <ul className="space-y-0.5">
-      {item.inputs.map((i, n) => (
-        <li key={`${i.symbol}-${n}`} className="whitespace-nowrap">
-          {i.material ? <span className="text-muted">{i.material} </span> : null}
-          <span className="font-mono">{i.symbol}</span> = <span className="figure font-mono">{withUnit(exact(i.value), i.unit)}</span>
-          {i.recordId !== null ? (
-            <>
-              {" "}
-              (<a href={recordHref(i.recordId)} title={i.sourceLabel ?? undefined}>rev. {i.revisionId}</a>)
-            </>
-          ) : null}
-        </li>
-      ))}
-    </ul>
-  );
-}
-
-function Row({ item }: { item: DerivedNumber }) {
-  return (
-    <tr className="border-t border-rule align-top" data-derived={item.id}>
-      <th scope="row" className="py-2 pr-3 text-left font-mono font-medium whitespace-nowrap">{item.label}</th>
-      <td className="px-3 py-2 text-right whitespace-nowrap">
-        <span className="figure font-mono text-base font-semibold" title={`${item.value} ${item.unit}`}>{readable(item.value)}</span> {item.unit}
-        {item.stated ? (
-          <span className="block text-xs text-muted">
-            stated{" "}
-            {item.stated.recordId !== null ? <a href={recordHref(item.stated.recordId)}>{exact(item.stated.value)}</a> : exact(item.stated.value)}
-          </span>
-        ) : null}
-      </td>
-      <td className="px-3 py-2 text-xs">
-        <span className="font-mono">{item.formula}</span>
-        <span className="block text-muted">{item.reference}</span>
-        {item.warnings.map((w) => (
-          <span key={w} className="block text-warn">{w}</span>
-        ))}
-      </td>
-      <td className="py-2 pl-3 text-xs">
-        <Inputs item={item} />
-      </td>
-    </tr>
-  );
-}
 
 /**
  * On a material page: derived gaps at Γ, X and L and the lattice constant at any temperature (and, for an alloy,
@@ -60,13 +16,14 @@ export function DerivedValues({ derived, form }: { derived: DerivedValuesData; f
   const alloy = derived.material.kind === "alloy";
   const e = form.errors;
   const xText = derived.composition === null ? "" : String(derived.composition);
-  const items = [...derived.gaps, ...(derived.lattice ? [derived.lattice] : [])];
+  const items = derivedNumbersOf(derived).map(evaluatedValueOf);
   return (
     <section id="derived" className="card space-y-4 p-5" aria-labelledby="derived-title">
       <div className="flex flex-wrap items-baseline gap-x-3">
         <h2 id="derived-title" className="text-lg font-semibold">Derived values</h2>
         <p className="text-sm text-muted">
-          Computed now from the current revisions, not stored{alloy ? `; x is the fraction of ${derived.alloyPlot?.compositionLabel.match(/fraction of (\S+)\)/)?.[1] ?? "end member A"}` : ""}.
+          Computed now from the current revisions, not stored{alloy ? `; x is the fraction of ${derived.alloyPlot?.compositionLabel.match(/fraction of (\S+)\)/)?.[1] ?? "end member A"}` : ""}. Each uncertainty is
+          propagated by the GUM from the uncertainties the revisions state; “± not stated” where they state none.
         </p>
       </div>
       <Form method="get" preventScrollReset className="flex flex-wrap items-start gap-3" aria-label="Conditions of the derived values">
@@ -76,22 +33,23 @@ export function DerivedValues({ derived, form }: { derived: DerivedValuesData; f
           <FieldError id="derived-temperature-error" message={e.temperature} />
         </div>
         {alloy ? (
-          <>
-            <div>
-              <label htmlFor="derived-x" className="label">Composition x</label>
-              <input id="derived-x" name="x" inputMode="decimal" defaultValue={form.values.x || xText} className="field mt-1 w-28 font-mono" {...invalidProps("derived-x-error", e.x)} />
-              <FieldError id="derived-x-error" message={e.x} />
-            </div>
-            <div>
-              <label htmlFor="derived-substrate" className="label">Substrate</label>
-              <select id="derived-substrate" name="substrate" defaultValue={derived.substrateKey ?? ""} className="field mt-1 w-64" {...invalidProps("derived-substrate-error", e.substrate)}>
-                {derived.substrates.map((s) => (
-                  <option key={s.key} value={s.key}>{s.key} — {s.name}</option>
-                ))}
-              </select>
-              <FieldError id="derived-substrate-error" message={e.substrate} />
-            </div>
-          </>
+          <div>
+            <label htmlFor="derived-x" className="label">Composition x</label>
+            <input id="derived-x" name="x" inputMode="decimal" defaultValue={form.values.x || xText} className="field mt-1 w-28 font-mono" {...invalidProps("derived-x-error", e.x)} />
+            <FieldError id="derived-x-error" message={e.x} />
+          </div>
+        ) : null}
+        {derived.substrates.length ? (
+          <div>
+            <label htmlFor="derived-substrate" className="label">Substrate</label>
+            <select id="derived-substrate" name="substrate" defaultValue={derived.substrateKey ?? ""} className="field mt-1 w-64" {...invalidProps("derived-substrate-error", e.substrate)}>
+              {alloy ? null : <option value="">none</option>}
+              {derived.substrates.map((s) => (
+                <option key={s.key} value={s.key}>{s.key} — {s.name}</option>
+              ))}
+            </select>
+            <FieldError id="derived-substrate-error" message={e.substrate} />
+          </div>
         ) : null}
         <div className="pt-5">
           <button type="submit" className="btn-primary">Derive</button>
@@ -99,23 +57,7 @@ export function DerivedValues({ derived, form }: { derived: DerivedValuesData; f
       </Form>
 
       {items.length ? (
-        <div className="overflow-x-auto">
-          <table className="w-full text-sm" aria-label="Derived values">
-            <thead className="text-left text-xs text-muted">
-              <tr>
-                <th className="py-1 pr-3 font-medium">quantity</th>
-                <th className="px-3 text-right font-medium">value</th>
-                <th className="px-3 font-medium">formula</th>
-                <th className="pl-3 font-medium">from</th>
-              </tr>
-            </thead>
-            <tbody>
-              {items.map((item) => (
-                <Row key={item.id} item={item} />
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <DerivedTable items={items} label="Derived values" />
       ) : (
         <p className="text-sm text-muted">Nothing can be derived for {derived.material.key} from the values in the ledger yet.</p>
       )}

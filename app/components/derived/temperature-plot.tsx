@@ -1,5 +1,5 @@
 import { TemperatureChart } from "~/components/charts";
-import type { DerivedValuesData } from "~/.server/derived";
+import type { DerivedValuesData } from "~/domain/derived";
 
 /** Eg(T) at Γ, X and L (bowed at the chosen x for an alloy), the chosen temperature marked. */
 export function TemperaturePlot({ plot, title }: { plot: NonNullable<DerivedValuesData["temperaturePlot"]>; title: string }) {

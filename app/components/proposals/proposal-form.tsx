@@ -3,10 +3,11 @@ import { Form, useFetcher, useNavigation, useSubmit } from "react-router";
 import { FieldError, FormError, invalidProps } from "~/components/field-error";
 import {
   payloadToFormData, SOURCE_KIND_KEYS, SOURCE_KIND_LABELS, validateProposal, type ProposalCatalogue, type ProposalFieldErrors, type ProposalKind,
-  type ProposalPayload, type RevisionCardData,
+  type ProposalPayload,
 } from "~/domain/proposal-schemas";
 import { VALLEY_KEYS, VALLEY_LABELS } from "~/domain/quantities";
 import { METHOD_KEYS, METHOD_LABELS } from "~/domain/registry-schemas";
+import type { RevisionView } from "~/domain/revision-view";
 import { convertToCanonical, displayUnit } from "~/domain/units";
 import { LiveCheck } from "~/components/checks";
 import { RevisionCard } from "./revision-card";
@@ -19,7 +20,7 @@ export type FormRecordInfo = {
   quantityName: string;
   conditions: string;
   unit: string;
-  current: RevisionCardData | null;
+  current: RevisionView | null;
 };
 
 /** What the autosave and submit actions answer (the shape of proposalFormAction's data). */
@@ -124,6 +125,10 @@ export function ProposalForm(props: {
     setQueuedIntent(null);
     submit(form, { method: "post", action });
   }, [queuedIntent, fetcher.state]);
+
+  // A refused submission saved the draft before it was refused; an autosave after it is newer news.
+  const refused = props.actionData?.intent === "submit" ? props.actionData.savedAt : null;
+  const refusedSave = refused && !(fetcher.data?.savedAt && fetcher.data.savedAt > refused) ? refused : null;
 
   const check = useMemo(() => validateProposal(payload, catalogue), [payload, catalogue]);
   const clientErrors: ProposalFieldErrors = check.ok ? {} : check.errors;
@@ -356,6 +361,8 @@ export function ProposalForm(props: {
             </span>
           ) : saving ? (
             "Saving the draft…"
+          ) : refusedSave ? (
+            `Not submitted: what you typed is saved as a draft (${refusedSave.slice(11, 19)} UTC). Correct the marked fields and submit again.`
           ) : fetcher.data?.savedAt ? (
             `Draft saved at ${fetcher.data.savedAt.slice(11, 19)} UTC.`
           ) : props.savedAt ? (

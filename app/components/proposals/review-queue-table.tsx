@@ -1,5 +1,6 @@
 import { createColumnHelper, createSortedRowModel, rowSortingFeature, sortFn_alphanumeric, sortFn_text, tableFeatures, useTable, type SortingState } from "@tanstack/react-table";
 import { Link } from "react-router";
+import { SortableTable } from "~/components/sortable-table";
 import type { ReviewQueueRow } from "~/domain/proposal-schemas";
 import { ageText, StaleBadge } from "./proposal-state";
 
@@ -79,44 +80,14 @@ export function ReviewQueueTable({ rows, sort, dir, nowIso, hrefFor }: { rows: R
   const sorting: SortingState = [{ id: sort, desc: dir === "desc" }];
   const table = useTable({ features, columns: columnsAt(nowIso), data: rows, state: { sorting }, getRowId: (r) => String(r.id) });
   return (
-    <div className="card overflow-x-auto">
-      <table className="w-full border-collapse text-sm" data-testid="review-queue">
-        <caption className="sr-only">Proposals waiting for your decision, sorted by {sort} ({dir === "desc" ? "descending" : "ascending"})</caption>
-        <thead>
-          {table.getHeaderGroups().map((group) => (
-            <tr key={group.id} className="border-b border-rule bg-paper text-left">
-              {group.headers.map((header) => {
-                const id = header.column.id as QueueSort;
-                const sortable = (QUEUE_SORTS as readonly string[]).includes(id);
-                const sorted = header.column.getIsSorted();
-                return (
-                  <th key={header.id} scope="col" className="px-3 py-2 font-semibold" aria-sort={sorted ? (sorted === "asc" ? "ascending" : "descending") : undefined}>
-                    {sortable ? (
-                      <Link to={hrefFor(id, sorted === "asc" ? "desc" : "asc")} preventScrollReset className="inline-flex items-center gap-1 text-ink no-underline hover:underline">
-                        <table.FlexRender header={header} />
-                        <span aria-hidden="true" className="text-xs text-copper">{sorted === "asc" ? "▲" : sorted === "desc" ? "▼" : "↕"}</span>
-                      </Link>
-                    ) : (
-                      <table.FlexRender header={header} />
-                    )}
-                  </th>
-                );
-              })}
-            </tr>
-          ))}
-        </thead>
-        <tbody>
-          {table.getRowModel().rows.map((row) => (
-            <tr key={row.id} className="border-b border-rule last:border-b-0 hover:bg-teal-soft/40">
-              {row.getAllCells().map((cell) => (
-                <td key={cell.id} className="px-3 py-2 align-top">
-                  <table.FlexRender cell={cell} />
-                </td>
-              ))}
-            </tr>
-          ))}
-        </tbody>
-      </table>
-    </div>
+    <SortableTable
+      table={table}
+      sorting={sorting}
+      caption={`Proposals waiting for your decision, sorted by ${sort} (${dir === "desc" ? "descending" : "ascending"})`}
+      sortTo={(id, direction) => ((QUEUE_SORTS as readonly string[]).includes(id) ? hrefFor(id as QueueSort, direction) : null)}
+      preventScrollReset
+      rowClassName="hover:bg-teal-soft/40"
+      testId="review-queue"
+    />
   );
 }

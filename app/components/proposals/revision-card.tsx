@@ -1,7 +1,6 @@
-import type { RevisionCardData } from "~/domain/proposal-schemas";
 import { formatDay, methodLabel, UncertaintyText, ValueWithUnit } from "~/components/registry/format";
 import { SourceReference } from "~/components/registry/source-link";
-import type { Method } from "~/domain/registry-schemas";
+import type { RevisionView } from "~/domain/revision-view";
 
 function Row({ label, children }: { label: string; children: React.ReactNode }) {
   return (
@@ -13,7 +12,8 @@ function Row({ label, children }: { label: string; children: React.ReactNode }) 
 }
 
 /** One revision with its provenance: value as kept and as typed, uncertainty, method, source with locator, people, notes. */
-export function RevisionCard({ title, revision, tone, emptyText }: { title: string; revision: RevisionCardData | null; tone: "current" | "proposed" | "base"; emptyText: string }) {
+export function RevisionCard({ title, revision, tone, emptyText }: { title: string; revision: RevisionView | null; tone: "current" | "proposed" | "base"; emptyText: string }) {
+  const retirement = revision?.kind === "retirement";
   const border = tone === "proposed" ? "border-t-copper" : tone === "current" ? "border-t-teal" : "border-t-rule";
   return (
     <section className={`card border-t-4 ${border} p-4`} aria-label={title}>
@@ -23,7 +23,7 @@ export function RevisionCard({ title, revision, tone, emptyText }: { title: stri
       ) : (
         <dl className="mt-2">
           <Row label="Value">
-            {revision.retirement ? (
+            {retirement ? (
               <span className="font-medium text-fail">retired</span>
             ) : (
               <span className="text-base" data-testid={`${tone}-value`}>
@@ -35,14 +35,14 @@ export function RevisionCard({ title, revision, tone, emptyText }: { title: stri
               </span>
             )}
           </Row>
-          {!revision.retirement ? (
+          {!retirement ? (
             <>
               <Row label="Uncertainty"><UncertaintyText uncertainty={revision.uncertainty} unit={revision.unit} /></Row>
-              <Row label="Method">{methodLabel((revision.method as Method | null) ?? null)}</Row>
+              <Row label="Method">{methodLabel(revision.method)}</Row>
             </>
           ) : null}
           <Row label="Source">
-            {revision.source ? <SourceReference source={{ ...revision.source, id: 0 }} /> : <span className="text-muted">no source</span>}
+            {revision.source ? <SourceReference source={revision.source} /> : <span className="text-muted">no source</span>}
             {revision.locator ? <span className="block text-muted">at {revision.locator}</span> : null}
           </Row>
           {revision.validFromK !== null || revision.validToK !== null ? (
@@ -54,13 +54,13 @@ export function RevisionCard({ title, revision, tone, emptyText }: { title: stri
               {revision.periodAngstrom ? <span className="text-muted"> · period a = {revision.periodAngstrom} Å</span> : null}
             </Row>
           ) : null}
-          <Row label={revision.retirement ? "Reason" : "Notes"}>{revision.notes ?? <span className="text-muted">none</span>}</Row>
+          <Row label={retirement ? "Reason" : "Notes"}>{revision.notes ?? <span className="text-muted">none</span>}</Row>
           <Row label="People">
             {revision.proposedBy ? `proposed by ${revision.proposedBy}` : "—"}
             {revision.proposedAt ? ` on ${formatDay(revision.proposedAt)}` : ""}
             {revision.approvedBy ? `; approved by ${revision.approvedBy}${revision.approvedAt ? ` on ${formatDay(revision.approvedAt)}` : ""}` : ""}
           </Row>
-          {revision.seq !== null ? <Row label="Revision">{`#${revision.seq} (id ${revision.revisionId})`}</Row> : null}
+          {revision.seq !== null ? <Row label="Revision">{`#${revision.seq} (id ${revision.id})`}</Row> : null}
         </dl>
       )}
     </section>

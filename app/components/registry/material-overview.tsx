@@ -1,5 +1,6 @@
 import type { ReactNode } from "react";
-import type { MaterialDetail, RecordWithHistory } from "~/.server/registry/queries";
+import type { MaterialDetail } from "~/.server/registry/material-page";
+import type { RecordWithHistory } from "~/.server/registry/revision-rows";
 import { quantityByKey } from "~/domain/quantities";
 import { conditionsLabel, formatDay, methodLabel, StateBadge, UncertaintyText, ValueWithUnit } from "./format";
 import { Provenance } from "./provenance";

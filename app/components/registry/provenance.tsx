@@ -1,4 +1,4 @@
-import type { RevisionView } from "~/.server/registry/queries";
+import type { RevisionView } from "~/domain/revision-view";
 import { displayUnit } from "~/domain/units";
 import { formatDay, methodLabel, UncertaintyText } from "./format";
 import { SourceLink } from "./source-link";

@@ -1,10 +1,11 @@
 import { Form, Link } from "react-router";
+import { RECORD_QUANTITIES } from "~/domain/quantities";
 import { METHOD_KEYS, METHOD_LABELS, PAGE_SIZES, type RegistryView } from "~/domain/registry-schemas";
 
+/** Families and materials from the database; the quantities are the catalogue's, in its order. */
 export type FilterOptions = {
   families: { key: string; name: string }[];
   materials: { key: string; name: string; familyKey: string }[] | null;
-  quantities: { key: string; name: string; symbol: string }[];
 };
 
 /** The registry's filters as a GET form: the view lands in the URL, so it can be shared and works without JavaScript. */
@@ -39,8 +40,8 @@ export function RegistryFilters({ view, options }: { view: RegistryView; options
         <span className="label">Quantity</span>
         <select name="quantity" defaultValue={view.quantity ?? ""} className="field mt-1">
           <option value="">All quantities</option>
-          {options.quantities.map((q) => (
-            <option key={q.key} value={q.key}>{q.symbol} — {q.name}</option>
+          {RECORD_QUANTITIES.map((q) => (
+            <option key={q.key} value={q.key}>{`${q.symbol} — ${q.name}`}</option>
           ))}
         </select>
       </label>

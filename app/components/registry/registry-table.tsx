@@ -1,122 +1,124 @@
-import { createColumnHelper, flexRender, rowSortingFeature, tableFeatures, useTable, type SortingState } from "@tanstack/react-table";
-import { Link } from "react-router";
-import type { RegistryRow } from "~/.server/registry/queries";
-import { normalisedDecimalKey } from "~/domain/exact-decimal";
+import type { ReactNode } from "react";
+import { createColumnHelper, rowSortingFeature, tableFeatures, useTable, type SortingState } from "@tanstack/react-table";
+import type { RegistryTablePage, RegistryTableRow, RegistryTableSource } from "~/.server/registry/listing";
+import { SortableTable } from "~/components/sortable-table";
+import { quantityByKey } from "~/domain/quantities";
 import { REGISTRY_SORTS, registryViewSearch, type RegistrySort, type RegistryView } from "~/domain/registry-schemas";
-import { formatDay, methodLabel, temperatureLabel, UncertaintyText, valleyLabel, ValueWithUnit } from "./format";
-import { SourceLink } from "./source-link";
+import { displayUnit } from "~/domain/units";
 
 const features = tableFeatures({ rowSortingFeature });
-const column = createColumnHelper<typeof features, RegistryRow>();
+const column = createColumnHelper<typeof features, RegistryTableRow>();
 
-// Sorting and paging happen in SQL; the table gets one sorted page and only renders it (manualSorting).
-// Cells link with plain anchors: rendering some 200 router links was most of this table's render time.
-const columns = column.columns([
-  column.display({
-    id: "material",
-    header: "Material",
-    cell: ({ row: { original: r } }) => (
-      <a href={`/materials/${encodeURIComponent(r.materialKey)}`} className="font-medium">
-        {r.materialKey}
-      </a>
-    ),
-  }),
-  column.display({
-    id: "quantity",
-    header: "Quantity",
-    cell: ({ row: { original: r } }) => (
-      <span>
-        <span className="font-mono">{r.quantitySymbol}</span> <span className="text-muted">{r.quantityName}</span>
-        {r.composition !== null ? <span className="text-muted"> · x = {normalisedDecimalKey(r.composition)}</span> : null}
-      </span>
-    ),
-  }),
-  column.display({
-    id: "value",
-    header: "Value",
-    cell: ({ row: { original: r } }) =>
-      r.kind === "retirement" ? (
-        <a href={`/records/${r.recordId}`} className="text-fail">retired</a>
-      ) : (
-        <a href={`/records/${r.recordId}`} className="no-underline">
-          <ValueWithUnit value={r.value} unit={r.unit} className="text-ink" />
-        </a>
-      ),
-  }),
-  column.display({ id: "temperature", header: "Temperature", cell: ({ row: { original: r } }) => <span className="whitespace-nowrap">{temperatureLabel(r.quantityKey, r.temperatureK)}</span> }),
-  column.display({ id: "valley", header: "Valley", enableSorting: false, cell: ({ row: { original: r } }) => valleyLabel(r.valley) }),
-  column.display({ id: "uncertainty", header: "Uncertainty", enableSorting: false, cell: ({ row: { original: r } }) => (r.kind === "retirement" ? "—" : <UncertaintyText uncertainty={r.uncertainty} unit={r.unit} />) }),
-  column.display({
-    id: "source",
-    header: "Source",
-    enableSorting: false,
-    cell: ({ row: { original: r } }) => (
-      <span>
-        <SourceLink source={r.source} />
-        {r.method ? <span className="block text-xs text-muted">{methodLabel(r.method)}</span> : null}
-      </span>
-    ),
-  }),
-  column.display({
-    id: "changed",
-    header: "Last change",
-    cell: ({ row: { original: r } }) => (
-      <a href={`/records/${r.recordId}`} className="figure whitespace-nowrap">
-        {formatDay(r.changedAt)} <span className="text-xs text-muted">rev {r.seq}</span>
-      </a>
-    ),
-  }),
-]);
+// Sorting and paging happen in SQL; the table gets one sorted page and only renders it. The headings come from the
+// table's columns; each row is written out here as plain elements, without a component or the table's row model per
+// cell, and styled by column in app.css (.registry-rows), so its markup carries no class attribute. A CPU profile
+// of the page under load put the per-cell row model and components at a fifth of its work, and the class attributes
+// at half of the table's bytes. Cells link with plain anchors: some 200 router links were most of the render time.
+const COLUMNS = [
+  { id: "material", header: "Material" },
+  { id: "quantity", header: "Quantity" },
+  { id: "value", header: "Value" },
+  { id: "temperature", header: "Temperature" },
+  { id: "valley", header: "Valley" },
+  { id: "uncertainty", header: "Uncertainty" },
+  { id: "source", header: "Source" },
+  { id: "changed", header: "Last change" },
+] as const;
+type ColumnId = (typeof COLUMNS)[number]["id"];
 
 const SORTABLE = new Set<string>(REGISTRY_SORTS);
+const columns = column.columns(COLUMNS.map((c) => column.display({ id: c.id, header: c.header, enableSorting: SORTABLE.has(c.id) })));
 
-export function RegistryTable({ rows, view }: { rows: RegistryRow[]; view: RegistryView }) {
+/** The quantity's symbol, name and unit from the catalogue; a key the catalogue does not know shows as itself. */
+function quantityOf(key: string): { symbol: string; name: string; unit: string } {
+  const q = quantityByKey(key);
+  return q ? { symbol: q.symbol, name: q.name, unit: q.canonicalUnit } : { symbol: key, name: "", unit: "" };
+}
+
+function unitText(unit: string): ReactNode {
+  const shown = displayUnit(unit);
+  return shown ? <small>{shown}</small> : <small className="text-xs">(dimensionless)</small>;
+}
+
+/** A row's fields by name (the page sends them as a tuple, see RegistryTableRow), with its source looked up. */
+function named(r: RegistryTableRow, sources: RegistryTableSource[]) {
+  const [recordId, materialKey, quantityKey, composition, retirement, value, uncertainty, temperature, valley, source, method, changed, seq] = r;
+  return { recordId, materialKey, quantity: quantityOf(quantityKey), composition, retirement, value, uncertainty, temperature, valley, source: source === null ? null : sources[source], method, changed, seq };
+}
+type Row = ReturnType<typeof named>;
+
+// One function per column, in the order of COLUMNS; app.css styles each column's elements by its position.
+const CELLS: Record<ColumnId, (r: Row) => ReactNode> = {
+  material: (r) => <a href={`/materials/${encodeURIComponent(r.materialKey)}`}>{r.materialKey}</a>,
+  quantity: (r) => (
+    <>
+      <span>{r.quantity.symbol}</span> <small>{r.composition === null ? r.quantity.name : `${r.quantity.name} · x = ${r.composition}`}</small>
+    </>
+  ),
+  value: (r) =>
+    r.retirement ? (
+      <a href={`/records/${r.recordId}`} className="text-fail">retired</a>
+    ) : (
+      <a href={`/records/${r.recordId}`}>
+        {r.value === null ? (
+          <small>no value</small>
+        ) : (
+          <>
+            <span>{r.value}</span> {unitText(r.quantity.unit)}
+          </>
+        )}
+      </a>
+    ),
+  temperature: (r) => r.temperature,
+  valley: (r) => r.valley,
+  uncertainty: (r) => {
+    if (r.retirement) return "—";
+    if (r.uncertainty === null) return <small>not stated</small>;
+    const shown = displayUnit(r.quantity.unit);
+    return (
+      <span>
+        ± <span>{r.uncertainty}</span>
+        {shown ? ` ${shown}` : ""}
+      </span>
+    );
+  },
+  source: (r) => (
+    <>
+      {r.source ? <a href={`/sources/${r.source[0]}`} title={r.source[2]}>{r.source[1]}</a> : <span className="text-muted">no source</span>}
+      {r.method ? <small>{r.method}</small> : null}
+    </>
+  ),
+  changed: (r) => (
+    <a href={`/records/${r.recordId}`}>
+      {`${r.changed} `}
+      <small>{`rev ${r.seq}`}</small>
+    </a>
+  ),
+};
+
+export function RegistryTable({ page, view }: { page: Pick<RegistryTablePage, "rows" | "sources">; view: RegistryView }) {
   const sorting: SortingState = [{ id: view.sort, desc: view.dir === "desc" }];
-  const table = useTable({ features, columns, data: rows, state: { sorting }, manualSorting: true, getRowId: (r) => String(r.recordId) });
+  const table = useTable({ features, columns, data: page.rows, state: { sorting }, manualSorting: true });
   return (
-    <div className="card overflow-x-auto">
-      <table className="w-full border-collapse text-sm [&_td]:px-3 [&_td]:py-2 [&_td]:align-top">
-        <caption className="sr-only">Current values of the records that match the filters, sorted by {view.sort} ({view.dir === "desc" ? "descending" : "ascending"})</caption>
-        <thead>
-          {table.getHeaderGroups().map((group) => (
-            <tr key={group.id} className="border-b border-rule bg-paper text-left">
-              {group.headers.map((header) => {
-                const id = header.column.id;
-                const sorted = header.column.getIsSorted();
-                const canSort = SORTABLE.has(id);
-                const nextDir = sorted === "asc" ? "desc" : "asc";
-                return (
-                  <th key={header.id} scope="col" className="px-3 py-2 font-semibold" aria-sort={sorted ? (sorted === "asc" ? "ascending" : "descending") : undefined}>
-                    {canSort ? (
-                      <Link
-                        to={{ search: registryViewSearch(view, { sort: id as RegistrySort, dir: sorted ? nextDir : "asc", page: 1 }) }}
-                        className="inline-flex items-center gap-1 text-ink no-underline hover:underline"
-                        aria-label={`Sort by ${String(header.column.columnDef.header).toLowerCase()}${sorted ? `, now ${sorted === "asc" ? "ascending" : "descending"}` : ""}`}
-                      >
-                        <table.FlexRender header={header} />
-                        <span aria-hidden="true" className="text-xs text-copper">{sorted === "asc" ? "▲" : sorted === "desc" ? "▼" : "↕"}</span>
-                      </Link>
-                    ) : (
-                      <table.FlexRender header={header} />
-                    )}
-                  </th>
-                );
-              })}
-            </tr>
-          ))}
-        </thead>
-        <tbody>
-          {table.getRowModel().rows.map((row) => (
-            <tr key={row.id} className="border-b border-rule last:border-b-0">
-              {row.getAllCells().map((cell) => (
-                <td key={cell.id}>
-                  {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                </td>
-              ))}
-            </tr>
-          ))}
+    <SortableTable
+      table={table}
+      sorting={sorting}
+      caption={`Current values of the records that match the filters, sorted by ${view.sort} (${view.dir === "desc" ? "descending" : "ascending"})`}
+      sortTo={(id, dir) => (SORTABLE.has(id) ? { search: registryViewSearch(view, { sort: id as RegistrySort, dir, page: 1 }) } : null)}
+      body={
+        <tbody className="registry-rows">
+          {page.rows.map((tuple) => {
+            const r = named(tuple, page.sources);
+            return (
+              <tr key={r.recordId}>
+                {COLUMNS.map((c) => (
+                  <td key={c.id}>{CELLS[c.id](r)}</td>
+                ))}
+              </tr>
+            );
+          })}
         </tbody>
-      </table>
-    </div>
+      }
+    />
   );
 }

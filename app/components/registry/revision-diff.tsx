@@ -1,9 +1,9 @@
-import type { RevisionView } from "~/.server/registry/queries";
+import type { StoredRevisionView } from "~/domain/revision-view";
 import { displayUnit } from "~/domain/units";
 import { formatDay, methodLabel } from "./format";
 import { coefficientsText, fitRangeText, typedInput } from "./provenance";
 
-type Field = { label: string; text: (r: RevisionView) => string };
+type Field = { label: string; text: (r: StoredRevisionView) => string };
 
 function fields(unit: string): Field[] {
   const u = displayUnit(unit);
@@ -26,7 +26,7 @@ function fields(unit: string): Field[] {
 }
 
 /** Two revisions of one record side by side; rows that differ are marked, in words as well as colour. */
-export function RevisionDiff({ from, to, unit }: { from: RevisionView; to: RevisionView; unit: string }) {
+export function RevisionDiff({ from, to, unit }: { from: StoredRevisionView; to: StoredRevisionView; unit: string }) {
   const rows = fields(unit).map((f) => ({ label: f.label, a: f.text(from), b: f.text(to) }));
   const changed = rows.filter((r) => r.a !== r.b).length;
   return (

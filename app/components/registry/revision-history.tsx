@@ -1,4 +1,4 @@
-import type { RevisionView } from "~/.server/registry/queries";
+import type { StoredRevisionView } from "~/domain/revision-view";
 import { formatDay, StateBadge, ValueWithUnit } from "./format";
 import { RevisionDiff } from "./revision-diff";
 import { SourceLink } from "./source-link";
@@ -9,7 +9,7 @@ export type CompareSelection = { from: number; to: number } | null;
  * A record's revisions, newest first, with a GET form that picks any two (two radio groups) and shows them side
  * by side. A plain form, so comparing works without JavaScript and the address can be shared.
  */
-export function RevisionHistory({ recordId, revisions, unit, action, selection }: { recordId: number; revisions: RevisionView[]; unit: string; action: string; selection: CompareSelection }) {
+export function RevisionHistory({ recordId, revisions, unit, action, selection }: { recordId: number; revisions: StoredRevisionView[]; unit: string; action: string; selection: CompareSelection }) {
   const from = selection && revisions.find((r) => r.id === selection.from);
   const to = selection && revisions.find((r) => r.id === selection.to);
   const defaultFrom = from?.id ?? revisions[1]?.id ?? revisions[0]?.id;

@@ -1,20 +1,19 @@
 import { doiUrl } from "~/domain/citations";
+import type { SourceRef } from "~/domain/revision-view";
 
-export type SourceLinkData = { id: number; kind: "doi" | "bibtex" | "report"; label: string; title: string; reference?: string; doi: string | null; reportNumber: string | null };
-
-/** A source's short label linking to its page, with the locator (page, table, equation) beside it. */
-export function SourceLink({ source, locator }: { source: SourceLinkData | null; locator?: string | null }) {
+/** A source's short label linking to its page (a source typed into a proposal has none yet), with the locator beside it. */
+export function SourceLink({ source, locator }: { source: SourceRef | null; locator?: string | null }) {
   if (!source) return <span className="text-muted">no source</span>;
   return (
     <span>
-      <a href={`/sources/${source.id}`} title={source.title}>{source.label}</a>
+      {source.id === null ? <span title={source.title}>{source.label}</span> : <a href={`/sources/${source.id}`} title={source.title}>{source.label}</a>}
       {locator ? <span className="text-muted">, {locator}</span> : null}
     </span>
   );
 }
 
 /** The full reference of a source: title, authors and year, the DOI as a link or the internal report number. */
-export function SourceReference({ source }: { source: SourceLinkData }) {
+export function SourceReference({ source }: { source: SourceRef }) {
   return (
     <span>
       <span className="font-medium">{source.title}</span>

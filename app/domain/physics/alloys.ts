@@ -112,3 +112,32 @@ function bisect(f: (x: number) => number, low: number, high: number, lowValue: n
   }
   return (lo + hi) / 2;
 }
+
+// Analytic partials of the quadratic bowing [V01]: ∂/∂Eg(A) = x, ∂/∂Eg(B) = 1 − x, ∂/∂C0 = −x(1 − x), ∂/∂C1 = −x²(1 − x).
+export function bowedGapSensitivities(x: number): { egA: number; egB: number; c0: number; c1: number } {
+  requireFraction(x, "composition x");
+  return { egA: x, egB: 1 - x, c0: -x * (1 - x), c1: -x * x * (1 - x) };
+}
+
+// Vegard (1921): ∂a/∂a(A) = x, ∂a/∂a(B) = 1 − x.
+export function vegardSensitivities(x: number): { aA: number; aB: number } {
+  requireFraction(x, "composition x");
+  return { aA: x, aB: 1 - x };
+}
+
+/** ∂x/∂ of each lattice constant for x = (a_s − a_B)/(a_A − a_B), the lattice-matched composition. */
+export function latticeMatchedCompositionSensitivities(pair: LatticePair, substrateAngstrom: number): { aA: number; aB: number; substrate: number } {
+  const aA = requireFinite(pair.aAAngstrom, "a(A)");
+  const aB = requireFinite(pair.aBAngstrom, "a(B)");
+  const s = requirePositive(substrateAngstrom, "substrate lattice constant");
+  if (aA === aB) throw new RangeError("the end members have the same lattice constant: no composition is singled out");
+  const d = aA - aB;
+  return { aA: -(s - aB) / (d * d), aB: (s - aA) / (d * d), substrate: 1 / d };
+}
+
+// Lattice mismatch of a layer on a substrate, (a_layer − a_s)/a_s, with ∂/∂a_layer = 1/a_s and ∂/∂a_s = −a_layer/a_s².
+export function latticeMismatch(layerAngstrom: number, substrateAngstrom: number): { value: number; sensitivities: { layer: number; substrate: number } } {
+  const layer = requirePositive(layerAngstrom, "layer lattice constant");
+  const s = requirePositive(substrateAngstrom, "substrate lattice constant");
+  return { value: (layer - s) / s, sensitivities: { layer: 1 / s, substrate: -layer / (s * s) } };
+}

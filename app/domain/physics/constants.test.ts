@@ -8,6 +8,9 @@ import {
   HBAR2_OVER_2ME_EV_A2,
   HBAR_J_S,
   PLANCK_J_S,
+  RYDBERG_EV,
+  RYDBERG_PER_M,
+  SPEED_OF_LIGHT_M_PER_S,
 } from "./constants";
 import { expectPrinted } from "./test-support";
 
@@ -34,5 +37,18 @@ describe("constants [CODATA18]", () => {
 
   it("derives ħ²/(2m_e) = 3.80998212 eV·Å² [CODATA18] (calc)", () => {
     expectPrinted(HBAR2_OVER_2ME_EV_A2, "3.80998212", "CODATA18");
+  });
+
+  it("derives the Rydberg energy R∞hc = 13.605693122994 eV from R∞ = 10973731.568160 m⁻¹ [CODATA18]", () => {
+    expect(SPEED_OF_LIGHT_M_PER_S).toBe(299792458);
+    expect(RYDBERG_PER_M).toBe(10973731.56816);
+    expectPrinted(RYDBERG_EV, "13.605693122994", "CODATA18");
+  });
+
+  // R∞hc = α² m_e c²/2 with α = 7.2973525693e-3 [CODATA18]: the two routes agree to the 10 digits α carries.
+  it("agrees with α² m_e c²/2 [CODATA18]", () => {
+    const alpha = 7.2973525693e-3;
+    const fromAlpha = (alpha * alpha * ELECTRON_MASS_KG * SPEED_OF_LIGHT_M_PER_S ** 2) / 2 / ELEMENTARY_CHARGE_C;
+    expect(Math.abs(fromAlpha / RYDBERG_EV - 1)).toBeLessThan(1e-10);
   });
 });

@@ -14,6 +14,13 @@ export const BOLTZMANN_J_PER_K = 1.380649e-23;
 /** Boltzmann constant k_B in eV/K (CODATA lists 8.617333262e-5). */
 export const BOLTZMANN_EV_PER_K = BOLTZMANN_J_PER_K / ELEMENTARY_CHARGE_C;
 
+/** Speed of light in vacuum c in m/s (exact). */
+export const SPEED_OF_LIGHT_M_PER_S = 299792458;
+/** Rydberg constant R∞ in 1/m. */
+export const RYDBERG_PER_M = 10973731.56816;
+/** The Rydberg energy R∞hc in eV (CODATA lists 13.605693122994); form factors are often given in Ry. */
+export const RYDBERG_EV = (RYDBERG_PER_M * PLANCK_J_S * SPEED_OF_LIGHT_M_PER_S) / ELEMENTARY_CHARGE_C;
+
 const SQUARE_METRES_PER_SQUARE_ANGSTROM = 1e-20;
 
 /** ħ²/(2 m_e) in eV·Å², derived from the constants above (≈ 3.80998212). */

@@ -4,4 +4,6 @@ export * from "./nfe";
 export * from "./varshni";
 export * from "./alloys";
 export * from "./kane";
-export { symmetricEigenvalues } from "./symmetric-eigenvalues";
+export { hermitianEigenvalues, symmetricEigenvalues } from "./symmetric-eigenvalues";
+export * from "./epm";
+export { PhysicsInputError } from "./validate";

@@ -62,3 +62,24 @@ export function checkKaneMass(
     verdict: verdictFromResidual(relativeResidual, relativeTolerance),
   };
 }
+
+/** Partial derivatives of the Kane mass (in m0) by each input, for the GUM law of propagation. */
+export interface KaneSensitivities {
+  ep: number;
+  f: number;
+  eg: number;
+  deltaSo: number;
+}
+
+// m* = 1/D with D = 1 + 2F + Ep·g, g = (Eg + 2Δ/3)/(Eg(Eg + Δ)); ∂m*/∂v = −m*²·∂D/∂v, the partials of g taken analytically.
+export function kaneMassSensitivities(p: KaneParameters): KaneSensitivities {
+  const mass = kaneMassM0(p);
+  const { epEv: ep, egEv: eg, deltaSoEv: delta } = p;
+  const n = eg + (2 * delta) / 3;
+  const q = eg * (eg + delta);
+  const g = n / q;
+  const dgdEg = (q - n * (2 * eg + delta)) / (q * q);
+  const dgdDelta = ((2 / 3) * q - n * eg) / (q * q);
+  const m2 = mass * mass;
+  return { ep: -m2 * g, f: -m2 * 2, eg: -m2 * ep * dgdEg, deltaSo: -m2 * ep * dgdDelta };
+}

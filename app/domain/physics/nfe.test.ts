@@ -1,7 +1,12 @@
 import fc from "fast-check";
+import { eigs } from "mathjs";
+import { EigenvalueDecomposition, Matrix } from "ml-matrix";
 import { describe, expect, it } from "vitest";
+import { HBAR2_OVER_2ME_EV_A2 } from "./constants";
 import {
   DEFAULT_NFE_TOLERANCE_EV,
+  MAX_RESOLUTION_EV,
+  RELATIVE_CONVERGENCE,
   type PeriodicPotential,
   centralEquationEigenvaluesEv,
   centralEquationGap,
@@ -16,6 +21,7 @@ import {
   zoneKPoints,
 } from "./nfe";
 import { expectPrinted } from "./test-support";
+import { PhysicsInputError } from "./validate";
 
 const GAAS_A = 5.65325; // Å [V01]
 const cosine = (energyEv: number, periodAngstrom = GAAS_A): PeriodicPotential => ({
@@ -181,6 +187,155 @@ describe("basis convergence", () => {
     const wide = centralEquationGap(cosine(0.3, GAAS_A * Math.SQRT2));
     expect(heavy.gapEv).toBeCloseTo(wide.gapEv, 9);
     expect(heavy.lowerEv).toBeCloseTo(wide.lowerEv, 9);
+  });
+});
+
+// The reference: the central-equation Hamiltonian written out here from its formula [Kittel ch. 7] for a fixed, large
+// basis, diagonalised by mathjs `eigs` (Jacobi rotations, which keep small eigenvalues of such graded matrices to
+// their own relative precision). Gap n lies between eigenvalues n − 1 and n at k = π/a (odd n) or 0 (even n).
+function referenceGap(potential: PeriodicPotential, gapIndex: number, halfWidth = 40): { gapEv: number; lowerEv: number; upperEv: number } {
+  const g = (2 * Math.PI) / potential.periodAngstrom;
+  const kinetic = HBAR2_OVER_2ME_EV_A2 / (potential.massM0 ?? 1);
+  const k = gapIndex % 2 === 1 ? g / 2 : 0;
+  const u = new Map(potential.coefficients.map((c) => [c.n, c.energyEv]));
+  const size = 2 * halfWidth + 1;
+  const h = Array.from({ length: size }, (_, i) =>
+    Array.from({ length: size }, (_, j) => (i === j ? kinetic * (k - (i - halfWidth) * g) ** 2 : (u.get(Math.abs(i - j)) ?? 0))),
+  );
+  const values = (eigs(h, { eigenvectors: false }).values as number[]).slice().sort((x, y) => x - y);
+  return { lowerEv: values[gapIndex - 1], upperEv: values[gapIndex], gapEv: values[gapIndex] - values[gapIndex - 1] };
+}
+
+function expectSameGap(actual: { gapEv: number; lowerEv: number; upperEv: number }, expected: typeof actual, slack: number) {
+  expect(Math.abs(actual.gapEv - expected.gapEv), `gap ${actual.gapEv} against ${expected.gapEv}`).toBeLessThanOrEqual(slack);
+  expect(Math.abs(actual.lowerEv - expected.lowerEv)).toBeLessThanOrEqual(slack);
+  expect(Math.abs(actual.upperEv - expected.upperEv)).toBeLessThanOrEqual(slack);
+}
+
+// U_n couples only plane waves whose orders differ by n. A basis grown by one plane wave a side adds, when every n
+// shares a factor, waves the gap's states never meet: that step changes nothing and used to stop the loop.
+describe("harmonics with a common factor, or a dominant n ≥ 2", () => {
+  it("a = 10 Å, U_3 = 3 eV, m = 10 m0: gap 6 is 3.124805 eV as mathjs gives it on 121 plane waves, not 3.141608 eV", () => {
+    const potential: PeriodicPotential = { periodAngstrom: 10, coefficients: [{ n: 3, energyEv: 3 }], massM0: 10 };
+    const gap = centralEquationGap(potential, 6);
+    expect(gap.converged).toBe(true);
+    expectSameGap(gap, referenceGap(potential, 6, 60), 2e-9);
+    expectPrinted(gap.gapEv, "3.124805", "calc");
+  });
+
+  // U_n alone is a cosine of period a/n: its gaps r·n are the gaps r of that lattice, whose boundary energy is
+  // ε1' = ε(nπ/a) = n²ε(π/a), so the Mathieu values of q = U_n/ε1' apply [AS] Table 20.1.
+  const e1 = zoneBoundaryEnergyEv(GAAS_A);
+  const slack = (scale: number) => 2e-9 / scale;
+  for (const [n, gapIndex, lower, upper, names] of [
+    [2, 2, "-5.79008060", "1.85818754", "b1, a1"],
+    [2, 4, "2.09946045", "7.44910974", "b2, a2"],
+    [3, 6, "2.09946045", "7.44910974", "b2, a2"],
+  ] as const) {
+    it(`U_${n} alone with q = 5: gap ${gapIndex} edges are ε(${n}π/a)·(${names}) [AS]`, () => {
+      const scale = n * n * e1;
+      const gap = centralEquationGap({ periodAngstrom: GAAS_A, coefficients: [{ n, energyEv: 5 * scale }] }, gapIndex);
+      expect(gap.converged).toBe(true);
+      expectPrinted(gap.lowerEv / scale, lower, "AS", slack(scale));
+      expectPrinted(gap.upperEv / scale, upper, "AS", slack(scale));
+    });
+  }
+
+  it("U_2 and U_4 (a common factor 2), and a dominant U_3 with a weak U_1: gaps 6 and 8 agree with mathjs", () => {
+    const cases: [PeriodicPotential, number][] = [
+      [{ periodAngstrom: 10, coefficients: [{ n: 2, energyEv: 3 }, { n: 4, energyEv: -2 }], massM0: 10 }, 8],
+      [{ periodAngstrom: 10, coefficients: [{ n: 2, energyEv: 3 }, { n: 4, energyEv: -2 }], massM0: 10 }, 6],
+      [{ periodAngstrom: 8, coefficients: [{ n: 1, energyEv: 0.002 }, { n: 3, energyEv: 2.5 }], massM0: 5 }, 6],
+      [{ periodAngstrom: 8, coefficients: [{ n: 1, energyEv: 0.002 }, { n: 3, energyEv: 2.5 }], massM0: 5 }, 8],
+    ];
+    for (const [potential, gapIndex] of cases) {
+      const gap = centralEquationGap(potential, gapIndex);
+      expect(gap.converged).toBe(true);
+      expectSameGap(gap, referenceGap(potential, gapIndex), 2e-9);
+    }
+  });
+
+  // mathjs diagonalises 81×81 matrices here, a second or more under load: the test may take its time.
+  it("for coefficients at multiples of 2 or 3 (with or without a weak U_1), gaps 6 and 8 agree with mathjs", { timeout: 60_000 }, () => {
+    fc.assert(
+      fc.property(
+        fc.double({ min: 5, max: 10, noNaN: true }),
+        fc.double({ min: 1, max: 10, noNaN: true }),
+        fc.constantFrom(2, 3),
+        fc.array(fc.double({ min: 0.05, max: 3, noNaN: true }), { minLength: 1, maxLength: 2 }),
+        fc.option(fc.double({ min: 0.001, max: 0.01, noNaN: true })),
+        fc.constantFrom(6, 8),
+        (periodAngstrom, massM0, d, strengths, weak, gapIndex) => {
+          const coefficients = strengths.map((energyEv, i) => ({ n: d * (i + 1), energyEv: i % 2 ? -energyEv : energyEv }));
+          if (weak !== null) coefficients.push({ n: 1, energyEv: weak });
+          const potential = { periodAngstrom, massM0, coefficients };
+          const gap = centralEquationGap(potential, gapIndex);
+          expect(gap.converged).toBe(true);
+          expectSameGap(gap, referenceGap(potential, gapIndex), 3e-9);
+        },
+      ),
+      { numRuns: 16 },
+    );
+  });
+
+  it("a high order gets room for two steps of its size: U_1 = U_50 = 0.1 eV converges, beside ml-matrix on 321 waves", () => {
+    const potential: PeriodicPotential = { periodAngstrom: GAAS_A, coefficients: [{ n: 1, energyEv: 0.1 }, { n: 50, energyEv: 0.1 }] };
+    const gap = centralEquationGap(potential);
+    expect(gap.converged).toBe(true);
+    expect(gap.planeWaves).toBeGreaterThan(201);
+    const h = planeWaveHamiltonian(potential, 1, 160);
+    const values = new EigenvalueDecomposition(new Matrix(h), { assumeSymmetric: true }).realEigenvalues.sort((x, y) => x - y);
+    expectSameGap(gap, { lowerEv: values[0], upperEv: values[1], gapEv: values[1] - values[0] }, 2e-9);
+  });
+});
+
+describe("energy scales double precision can and cannot resolve", () => {
+  it("refuses a period of 1e-30 Å (it gave a gap of 0) and 1e-6 Å (1.0078 eV for a true 1 eV), naming the period", () => {
+    for (const periodAngstrom of [1e-30, 1e-6]) {
+      const run = () => centralEquationGap(cosine(0.5, periodAngstrom));
+      expect(run).toThrow(PhysicsInputError);
+      expect(run).toThrow(/period .* too small.*at least 0\.0123 Å/);
+      try {
+        run();
+      } catch (e) {
+        expect((e as PhysicsInputError).field).toBe("period");
+      }
+    }
+    expect(() => checkNfeGap({ ...cosine(0.5, 1e-6), statedGapEv: 1 })).toThrow(PhysicsInputError);
+    expect(() => nfeBands(cosine(0.5, 1e-6))).toThrow(PhysicsInputError);
+  });
+
+  it("refuses a mass that makes the scale too large at an ordinary period, naming the mass", () => {
+    let error: unknown;
+    try {
+      centralEquationGap({ ...cosine(0.5), massM0: 1e-7 });
+    } catch (e) {
+      error = e;
+    }
+    expect(error).toBeInstanceOf(PhysicsInputError);
+    expect((error as PhysicsInputError).field).toBe("mass");
+    expect((error as Error).message).toMatch(/mass .* too small/);
+  });
+
+  it("a higher gap lies at a larger scale ε(nG/2): the same period is refused for gap 20 and not for gap 1", () => {
+    const periodAngstrom = 0.03;
+    expect(centralEquationGap(cosine(0.5, periodAngstrom), 1).converged).toBe(true);
+    expect(() => centralEquationGap(cosine(0.5, periodAngstrom), 20)).toThrow(PhysicsInputError);
+  });
+
+  // At a = 0.015 Å, ħ²G²/2m = 6.7e5 eV: rounding moves the eigenvalues by about ε·N²·6.7e5 eV, more than 1e-9 eV,
+  // so an absolute threshold alone ran to the 201-wave cap. The relative one stops where the numbers stop moving.
+  it("converges against a threshold relative to ħ²G²/2m where the energies are large, and agrees with mathjs", () => {
+    const potential: PeriodicPotential = { periodAngstrom: 0.015, coefficients: [{ n: 1, energyEv: 0.5 }, { n: 2, energyEv: 0.3 }, { n: 3, energyEv: -0.2 }] };
+    const scale = HBAR2_OVER_2ME_EV_A2 * ((2 * Math.PI) / 0.015) ** 2;
+    const gap = centralEquationGap(potential, 1);
+    expect(gap.converged).toBe(true);
+    expect(gap.planeWaves).toBeLessThan(51);
+    expect(gap.thresholdEv).toBeCloseTo(RELATIVE_CONVERGENCE * scale, 12);
+    expect(gap.thresholdEv).toBeLessThanOrEqual(MAX_RESOLUTION_EV);
+    expectSameGap(gap, referenceGap(potential, 1, 30), 2 * gap.thresholdEv);
+    // Ordinary inputs keep the absolute threshold.
+    expect(centralEquationGap(cosine(0.1)).thresholdEv).toBe(1e-9);
   });
 });
 

@@ -1,6 +1,6 @@
 import { HBAR2_OVER_2ME_EV_A2 } from "./constants";
 import { symmetricEigenvalues } from "./symmetric-eigenvalues";
-import { requireFinite, requirePositive, requirePositiveInteger } from "./validate";
+import { PhysicsInputError, requireFinite, requirePositive, requirePositiveInteger } from "./validate";
 import { type Verdict, verdictFromResidual } from "./verdict";
 
 // Nearly-free-electron check in one dimension: the central equation of Bloch theory [Kittel ch. 7], [AM ch. 9].
@@ -28,9 +28,15 @@ export interface PlaneWaveOrders {
 }
 
 export interface ConvergenceOptions {
-  /** The basis grows until the result changes by less than this (eV); default 1e-9. */
+  /**
+   * The basis grows until the result changes by less than this (eV) over two steps running; default 1e-9. Where the
+   * energy scale makes RELATIVE_CONVERGENCE of it larger, that is the threshold instead.
+   */
   convergenceEv?: number;
-  /** Largest basis tried before giving up as not converged; default 201. */
+  /**
+   * Largest basis tried before giving up as not converged; default 201, or as many as the first basis and two steps
+   * of the highest coefficient order need where that is more (orders above about 30).
+   */
   maxPlaneWaves?: number;
 }
 
@@ -43,6 +49,8 @@ export interface BandGapEdges {
 export interface CentralEquationGap extends BandGapEdges {
   planeWaves: number;
   converged: boolean;
+  /** The threshold the basis was grown against (eV): the absolute one, or the relative one where larger. */
+  thresholdEv: number;
 }
 
 export interface NfeBands {
@@ -81,6 +89,15 @@ export interface NfeCheck {
 export const DEFAULT_CONVERGENCE_EV = 1e-9;
 export const DEFAULT_MAX_PLANE_WAVES = 201;
 export const DEFAULT_NFE_TOLERANCE_EV = 0.01;
+/**
+ * The relative convergence threshold, a fraction of the energy scale of the gap. Rounding moves the eigenvalues by
+ * about ε·N²·ħ²G²/2m for a basis of 2N + 1 plane waves (ε = 2.2e-16), at most 2.2e-12 of it at the 201-wave cap.
+ */
+export const RELATIVE_CONVERGENCE = 1e-12;
+/** The coarsest resolution a gap is reported with (eV): inputs whose energy scale allows no better are refused. */
+export const MAX_RESOLUTION_EV = 1e-6;
+/** How many successive basis steps must each move the result by less than the threshold. */
+const QUIET_STEPS = 2;
 
 interface Model {
   /** G = 2π/a in 1/Å. */
@@ -203,44 +220,107 @@ interface Converged {
   converged: boolean;
 }
 
-// Grows the basis one plane wave on each side (m = −N..N, N → N + 1) until every value `evaluate`
-// returns moves by less than the convergence threshold; `needed` is the smallest usable N.
-function converge(
-  evaluate: (halfWidth: number) => number[],
-  needed: number,
-  startHalfWidth: number,
-  options: ConvergenceOptions,
-): Converged {
-  const tolerance = requirePositive(options.convergenceEv ?? DEFAULT_CONVERGENCE_EV, "convergence threshold");
-  const maxPlaneWaves = requirePositiveInteger(options.maxPlaneWaves ?? DEFAULT_MAX_PLANE_WAVES, "plane-wave cap");
+interface Growth {
+  /** The smallest usable half-width N. */
+  needed: number;
+  start: number;
+  /** Plane waves added on each side per step: the highest coefficient order, so that every harmonic reaches the new ones. */
+  step: number;
+  thresholdEv: number;
+}
+
+// Grows the basis by `step` plane waves on each side (m = −N..N, N → N + step) until every value `evaluate` returns
+// moves by less than the threshold on QUIET_STEPS steps running. U_n couples only plane waves whose orders differ by
+// n: growing by one when every n shares a factor d ≥ 2 adds plane waves the gap's states never meet, a step that
+// changes nothing and would stop the loop early. A step of the highest order M adds M successive orders a side,
+// each coupled to the basis already there.
+function converge(evaluate: (halfWidth: number) => number[], growth: Growth, options: ConvergenceOptions): Converged {
+  const { needed, step, thresholdEv } = growth;
+  const roomForTwoSteps = 2 * (growth.start + QUIET_STEPS * step) + 1;
+  const maxPlaneWaves = requirePositiveInteger(options.maxPlaneWaves ?? Math.max(DEFAULT_MAX_PLANE_WAVES, roomForTwoSteps), "plane-wave cap");
   const maxHalfWidth = Math.floor((maxPlaneWaves - 1) / 2);
   if (maxHalfWidth < needed) {
     throw new RangeError(`plane-wave cap ${maxPlaneWaves} is below the ${2 * needed + 1} plane waves needed`);
   }
-  let halfWidth = Math.max(needed, Math.min(startHalfWidth, maxHalfWidth - 1));
+  let halfWidth = Math.max(needed, Math.min(growth.start, maxHalfWidth - QUIET_STEPS * step));
   let previous = evaluate(halfWidth);
+  let quiet = 0;
   while (halfWidth < maxHalfWidth) {
-    halfWidth += 1;
+    halfWidth = Math.min(halfWidth + step, maxHalfWidth);
     const current = evaluate(halfWidth);
     const change = Math.max(...current.map((value, i) => Math.abs(value - previous[i])));
     previous = current;
-    if (change < tolerance) return { values: current, halfWidth, converged: true };
+    quiet = change < thresholdEv ? quiet + 1 : 0;
+    if (quiet >= QUIET_STEPS) return { values: current, halfWidth, converged: true };
   }
   return { values: previous, halfWidth, converged: false };
+}
+
+/** ħ²G²/2m, or the free-electron energy ε(nG/2) of gap n where that is larger, in eV: the energies gap n is made of. */
+function energyScaleOf(model: Model, gapIndex: number): number {
+  return model.kinetic * model.g * model.g * Math.max(1, (gapIndex * gapIndex) / 4);
+}
+
+/** The energy scale of gap n (ħ²G²/2m, or ε(nG/2) where larger), in eV. */
+export function nfeEnergyScaleEv(potential: Pick<PeriodicPotential, "periodAngstrom" | "massM0">, gapIndex = 1): number {
+  return energyScaleOf(modelOf({ ...potential, coefficients: [] }), requirePositiveInteger(gapIndex, "gap index"));
+}
+
+const short = (x: number) => String(Number(x.toPrecision(3)));
+
+/** The smallest period (Å) whose energy scale double precision resolves gap n at, for a band mass m (m0). */
+export function smallestResolvablePeriodAngstrom(massM0 = 1, gapIndex = 1): number {
+  const stretch = Math.max(1, (requirePositiveInteger(gapIndex, "gap index") ** 2) / 4);
+  return 2 * Math.PI * Math.sqrt(((HBAR2_OVER_2ME_EV_A2 / requirePositive(massM0, "mass")) * stretch * RELATIVE_CONVERGENCE) / MAX_RESOLUTION_EV);
+}
+
+// Double precision carries about 16 digits: energies of the order of the scale are resolved only to a fixed fraction
+// of it. Where that fraction exceeds MAX_RESOLUTION_EV the gap would be a number without meaning (a period of
+// 1e-30 Å gives a gap of 0), so the input is refused at the period, or at the mass where the period is ordinary.
+function growthOf(model: Model, potential: PeriodicPotential, gapIndex: number, highestBand: number, options: ConvergenceOptions): Growth {
+  const absolute = requirePositive(options.convergenceEv ?? DEFAULT_CONVERGENCE_EV, "convergence threshold");
+  const scale = energyScaleOf(model, gapIndex);
+  const resolution = RELATIVE_CONVERGENCE * scale;
+  if (resolution > MAX_RESOLUTION_EV) {
+    const largestScale = MAX_RESOLUTION_EV / RELATIVE_CONVERGENCE;
+    const massM0 = potential.massM0 ?? 1;
+    const periodAngstrom = potential.periodAngstrom;
+    const stretch = Math.max(1, (gapIndex * gapIndex) / 4);
+    const atFreeMass = HBAR2_OVER_2ME_EV_A2 * ((2 * Math.PI) / periodAngstrom) ** 2 * stretch > largestScale;
+    const why =
+      `gap ${gapIndex} lies at an energy scale of ${short(scale)} eV, where double precision resolves it only to ` +
+      `${short(resolution)} eV (the limit is ${MAX_RESOLUTION_EV * 1e6} µeV)`;
+    if (atFreeMass) {
+      const smallest = smallestResolvablePeriodAngstrom(massM0, gapIndex);
+      throw new PhysicsInputError(
+        "period",
+        `the period ${short(periodAngstrom)} Å is too small: ${why}; at m = ${short(massM0)} m0 the period must be at least ${short(smallest)} Å`,
+      );
+    }
+    const lightest = (HBAR2_OVER_2ME_EV_A2 * ((2 * Math.PI) / periodAngstrom) ** 2 * stretch) / largestScale;
+    throw new PhysicsInputError(
+      "mass",
+      `the mass ${short(massM0)} m0 is too small: ${why}; at a = ${short(periodAngstrom)} Å the mass must be at least ${short(lightest)} m0`,
+    );
+  }
+  const step = Math.max(model.u.length - 1, 1);
+  return {
+    needed: Math.ceil((highestBand - 1) / 2),
+    // A first basis that already holds the degenerate pair of the gap and the states its coefficients couple to.
+    start: Math.ceil(highestBand / 2) + step + 2,
+    step,
+    thresholdEv: Math.max(absolute, resolution),
+  };
 }
 
 function bandEnergiesAt(model: Model, kPiOverA: number, halfWidth: number): Float64Array {
   return eigenvaluesOf(model, kToPerAngstrom(model, kPiOverA), { min: -halfWidth, max: halfWidth });
 }
 
-// A first basis that already holds the degenerate pair of gap n and the states its coefficients couple to.
-function startingHalfWidth(model: Model, highestBand: number): number {
-  return Math.ceil(highestBand / 2) + Math.max(model.u.length - 1, 1) + 2;
-}
-
 /**
- * The gap n from diagonalising the plane-wave Hamiltonian at its k, the basis grown until the gap and
- * both edges change by less than the convergence threshold.
+ * The gap n from diagonalising the plane-wave Hamiltonian at its k, the basis grown until the gap and both edges
+ * change by less than the convergence threshold on two steps running. Throws a PhysicsInputError for a period or a
+ * mass whose energy scale double precision cannot resolve the gap at.
  */
 export function centralEquationGap(
   potential: PeriodicPotential,
@@ -253,7 +333,8 @@ export function centralEquationGap(
     const values = bandEnergiesAt(model, k, halfWidth);
     return [values[gapIndex - 1], values[gapIndex], values[gapIndex] - values[gapIndex - 1]];
   };
-  const result = converge(edges, Math.ceil(gapIndex / 2), startingHalfWidth(model, gapIndex + 1), options);
+  const growth = growthOf(model, potential, gapIndex, gapIndex + 1, options);
+  const result = converge(edges, growth, options);
   const [lowerEv, upperEv, gapEv] = result.values;
   return {
     gapEv,
@@ -261,6 +342,7 @@ export function centralEquationGap(
     upperEv,
     planeWaves: 2 * result.halfWidth + 1,
     converged: result.converged,
+    thresholdEv: growth.thresholdEv,
   };
 }
 
@@ -285,8 +367,8 @@ export function nfeBands(
   const indices = Array.from({ length: bandCount }, (_, i) => i);
   const lowest = (halfWidth: number) =>
     [0, 1].flatMap((k) => Array.from(bandEnergiesAt(model, k, halfWidth).subarray(0, bandCount)));
-  const needed = Math.ceil((bandCount - 1) / 2);
-  const { halfWidth, converged } = converge(lowest, needed, startingHalfWidth(model, bandCount), options);
+  const growth = growthOf(model, potential, Math.max(bandCount - 1, 1), bandCount, options);
+  const { halfWidth, converged } = converge(lowest, growth, options);
   const orders = { min: -halfWidth, max: halfWidth };
   const bandsEv = indices.map(() => new Array<number>(kPiOverA.length));
   const freeElectronEv = indices.map(() => new Array<number>(kPiOverA.length));
@@ -318,7 +400,9 @@ export function nfeVerdict(input: NfeVerdictInput): { verdict: Verdict; residual
   const { statedGapEv, centralGapEv, firstOrderGapEv, converged } = input;
   const toleranceEv = requirePositive(input.toleranceEv, "tolerance");
   const notes: string[] = [];
-  if (!converged) notes.push("the central equation did not converge within the plane-wave cap");
+  if (!converged) {
+    notes.push("the central equation did not converge within the plane-wave cap: its gap is the last basis's, not a converged value, so it cannot pass");
+  }
   if (Math.abs(firstOrderGapEv - centralGapEv) > toleranceEv) {
     notes.push("first-order 2|U_n| differs from the central-equation gap by more than the tolerance: the potential is not weak");
   }

@@ -1,3 +1,17 @@
+/**
+ * An input the physics cannot use, with the input it blames (e.g. "period", "mass") so that a form, the API or
+ * the command line can put the message at that field.
+ */
+export class PhysicsInputError extends RangeError {
+  override name = "PhysicsInputError";
+  constructor(
+    readonly field: string,
+    message: string,
+  ) {
+    super(message);
+  }
+}
+
 export function requireFinite(value: number, name: string): number {
   if (!Number.isFinite(value)) throw new RangeError(`${name} must be a finite number (got ${value})`);
   return value;

@@ -64,3 +64,25 @@ export function latticeAtTemperature(
   const t = requireNonNegative(temperatureK, "temperature");
   return { valueAngstrom: a300 + slope * (t - 300), ...rangeCheck(t, parameters.fittedRangeK) };
 }
+
+/** ∂Eg(T)/∂ of each Varshni parameter, for the GUM law of propagation; α in meV/K as the ledger keeps it. */
+export interface VarshniSensitivities {
+  eg0: number;
+  alphaMevPerK: number;
+  betaK: number;
+}
+
+// Analytic partials of Varshni (1967): ∂Eg/∂Eg(0) = 1, ∂Eg/∂α = −T²/(T + β), ∂Eg/∂β = αT²/(T + β)².
+export function varshniGapSensitivities(parameters: VarshniParameters, temperatureK: number): VarshniSensitivities {
+  const alpha = varshniAlphaEvPerK(parameters);
+  const beta = requireFinite(parameters.betaK, "β");
+  const t = requireNonNegative(temperatureK, "temperature");
+  if (!(t + beta > 0)) throw new RangeError(`T + β must be positive (T = ${t} K, β = ${beta} K)`);
+  return { eg0: 1, alphaMevPerK: -(t * t) / (t + beta) / 1000, betaK: (alpha * t * t) / ((t + beta) * (t + beta)) };
+}
+
+// ∂a(T)/∂a(300 K) = 1, ∂a(T)/∂(da/dT) = T − 300 K.
+export function latticeAtTemperatureSensitivities(temperatureK: number): { a300: number; daDt: number } {
+  const t = requireNonNegative(temperatureK, "temperature");
+  return { a300: 1, daDt: t - 300 };
+}

@@ -1,0 +1,3 @@
+export * from "./uncertainty";
+export * from "./derive";
+export * from "./release";
