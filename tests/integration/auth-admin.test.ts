@@ -139,7 +139,7 @@ describe("roles and deactivation", () => {
     expect((await user(ids.tomas)).role).toBe("contributor");
   });
 
-  it("deactivation ends the person's access at once, and reactivation restores it", async () => {
+  it("deactivation ends the person's access and sessions at once; after reactivation they sign in anew", async () => {
     const mei = await HttpClient.signedIn(app.url, ids.mei);
     expect((await mei.get("/account")).status).toBe(200);
     const row = await user(ids.mei);
@@ -147,7 +147,9 @@ describe("roles and deactivation", () => {
     expect((await mei.get("/account")).headers.get("location")).toBe("/sign-in?returnTo=%2Faccount");
     const again = await user(ids.mei);
     expect((await admin.post("/admin/users", { intent: "reactivate", userId: String(again.id), version: String(again.version) })).status).toBe(302);
-    expect((await mei.get("/account")).status).toBe(200);
+    // The session deactivation ended stays ended (it is gone from the server); a new sign-in works.
+    expect((await mei.get("/account")).status).toBe(302);
+    expect((await (await HttpClient.signedIn(app.url, ids.mei)).get("/account")).status).toBe(200);
     const actions = (await t.db.select().from(auditLog).where(eq(auditLog.targetId, String(ids.mei)))).map((r) => r.action);
     expect(actions).toEqual(expect.arrayContaining(["user.deactivated", "user.reactivated"]));
   });
