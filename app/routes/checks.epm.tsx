@@ -1,11 +1,11 @@
-import { useEffect, useRef, useState } from "react";
-import { data, Form, Link, useFetcher } from "react-router";
+import { useEffect, useState } from "react";
+import { data, Form } from "react-router";
 import type { Route } from "./+types/checks.epm";
 import { blankFormFactors, epmQueryOf, runEpmPage, type EpmFormValues, type EpmPageData } from "~/.server/checks";
 import { guardSolveOrRespond } from "~/.server/checks/solve-guard";
 import { requireUser } from "~/.server/permissions";
 import { BandStructureChart } from "~/components/charts";
-import { VerdictBadge } from "~/components/checks";
+import { CheckExamples, useRecheckedForm, VerdictBadge } from "~/components/checks";
 import { FieldError, FormError, invalidProps } from "~/components/field-error";
 
 export const meta: Route.MetaFunction = () => [{ title: "Crystal check · Bandledger" }];
@@ -209,35 +209,11 @@ const FORM_FACTOR_INPUTS = [
 ] as const;
 
 export default function CrystalCheckPage({ loaderData }: Route.ComponentProps) {
-  const fetcher = useFetcher<typeof loader>();
-  const formRef = useRef<HTMLFormElement>(null);
-  const timer = useRef<ReturnType<typeof setTimeout> | null>(null);
-  // The latest answer wins: a fetcher result while typing, the loader's after a submit or an example link.
-  const [live, setLive] = useState<EpmPageData | null>(null);
-  useEffect(() => setLive(null), [loaderData]);
-  useEffect(() => {
-    if (fetcher.data) setLive(fetcher.data);
-  }, [fetcher.data]);
-  const data: EpmPageData = live ?? loaderData;
+  const { data, formRef, recheck, busy } = useRecheckedForm<EpmPageData>("/checks/epm", loaderData, { debounceMs: DEBOUNCE_MS, keepEmpty: false });
   const { values } = loaderData;
   const [structure, setStructure] = useState(values.structure);
   useEffect(() => setStructure(values.structure), [values.structure]);
 
-  useEffect(() => () => {
-    if (timer.current) clearTimeout(timer.current);
-  }, []);
-
-  const recheck = () => {
-    if (timer.current) clearTimeout(timer.current);
-    timer.current = setTimeout(() => {
-      if (!formRef.current) return;
-      const params = new URLSearchParams();
-      for (const [k, v] of new FormData(formRef.current).entries()) if (typeof v === "string" && v !== "") params.append(k, v);
-      // live=1: a check while typing answers its messages with a 200, so the console does not log every keystroke as a failed request.
-      params.set("live", "1");
-      void fetcher.load(`/checks/epm?${params.toString()}`);
-    }, DEBOUNCE_MS);
-  };
 
   // Field messages follow the latest check, so a fix clears its message without a reload.
   const shown = data.errors;
@@ -346,20 +322,10 @@ export default function CrystalCheckPage({ loaderData }: Route.ComponentProps) {
             <button type="submit" className="btn-primary">Check</button>
           </Form>
 
-          <nav aria-label="Examples" className="card p-4 text-sm">
-            <p className="label">Examples</p>
-            <ul className="mt-2 space-y-2">
-              {loaderData.examples.map((e) => (
-                <li key={e.label}>
-                  <Link to={`/checks/epm?${e.query}`}>{e.label}</Link>
-                  <span className="block text-xs text-muted">{e.hint}</span>
-                </li>
-              ))}
-            </ul>
-          </nav>
+          <CheckExamples path="/checks/epm" examples={loaderData.examples} />
         </div>
 
-        <div aria-live="polite" aria-busy={fetcher.state !== "idle" || undefined}>
+        <div aria-live="polite" aria-busy={busy || undefined}>
           <Results data={data} />
         </div>
       </div>

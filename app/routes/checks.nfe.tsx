@@ -1,10 +1,9 @@
-import { useEffect, useRef, useState } from "react";
-import { data, Form, Link, useFetcher } from "react-router";
+import { data, Form } from "react-router";
 import type { Route } from "./+types/checks.nfe";
 import { NFE_MAX_ROWS, nfeQueryOf, runNfePage, type NfeFormValues, type NfePageData } from "~/.server/checks";
 import { guardSolveOrRespond } from "~/.server/checks/solve-guard";
 import { requireUser } from "~/.server/permissions";
-import { NfePlot, VerdictBadge } from "~/components/checks";
+import { CheckExamples, NfePlot, useRecheckedForm, VerdictBadge } from "~/components/checks";
 import { FieldError, invalidProps } from "~/components/field-error";
 
 export const meta: Route.MetaFunction = () => [{ title: "Nearly-free-electron check · Bandledger" }];
@@ -130,34 +129,10 @@ function Results({ data }: { data: NfePageData }) {
 }
 
 export default function NfeCheckPage({ loaderData }: Route.ComponentProps) {
-  const fetcher = useFetcher<typeof loader>();
-  const formRef = useRef<HTMLFormElement>(null);
-  const timer = useRef<ReturnType<typeof setTimeout> | null>(null);
-  // The latest answer wins: a fetcher result while typing, the loader's after a submit or an example link.
-  const [live, setLive] = useState<NfePageData | null>(null);
-  useEffect(() => setLive(null), [loaderData]);
-  useEffect(() => {
-    if (fetcher.data) setLive(fetcher.data);
-  }, [fetcher.data]);
-  const data: NfePageData = live ?? loaderData;
+  const { data, formRef, recheck, busy } = useRecheckedForm<NfePageData>("/checks/nfe", loaderData, { debounceMs: DEBOUNCE_MS, keepEmpty: true });
   const { values } = loaderData;
   const rows = values.coefficients.length;
 
-  useEffect(() => () => {
-    if (timer.current) clearTimeout(timer.current);
-  }, []);
-
-  const recheck = () => {
-    if (timer.current) clearTimeout(timer.current);
-    timer.current = setTimeout(() => {
-      if (!formRef.current) return;
-      const params = new URLSearchParams();
-      for (const [k, v] of new FormData(formRef.current).entries()) if (typeof v === "string") params.append(k, v);
-      // live=1: a check while typing answers its messages with a 200, so the console does not log every keystroke as a failed request.
-      params.set("live", "1");
-      void fetcher.load(`/checks/nfe?${params.toString()}`);
-    }, DEBOUNCE_MS);
-  };
 
   // Field messages follow the latest check, so a fix clears its message without a reload.
   const shown = data.errors;
@@ -235,20 +210,10 @@ export default function NfeCheckPage({ loaderData }: Route.ComponentProps) {
             <button type="submit" className="btn-primary">Check</button>
           </Form>
 
-          <nav aria-label="Examples" className="card p-4 text-sm">
-            <p className="label">Examples</p>
-            <ul className="mt-2 space-y-2">
-              {loaderData.examples.map((e) => (
-                <li key={e.label}>
-                  <Link to={`/checks/nfe?${e.query}`}>{e.label}</Link>
-                  <span className="block text-xs text-muted">{e.hint}</span>
-                </li>
-              ))}
-            </ul>
-          </nav>
+          <CheckExamples path="/checks/nfe" examples={loaderData.examples} />
         </div>
 
-        <div aria-live="polite" aria-busy={fetcher.state !== "idle" || undefined}>
+        <div aria-live="polite" aria-busy={busy || undefined}>
           <Results data={data} />
         </div>
       </div>

@@ -1,7 +1,7 @@
 import type { z } from "zod";
 import type { nfeCheckBodySchema, nfeCheckResultSchema } from "~/domain/api-schemas";
-import { toDecimalString } from "~/domain/decimal";
-import { checkNfeGap, CODATA_EDITION, PhysicsInputError } from "~/domain/physics";
+import { checkNfeGap, PhysicsInputError } from "~/domain/physics";
+import { nfeCheckFigures } from "../checks/nfe-form";
 import { apiError } from "./respond";
 
 // The physics names its own inputs; the request body calls them so.
@@ -29,20 +29,6 @@ export function runNfeCheck(body: z.infer<typeof nfeCheckBodySchema>): z.infer<t
     if (e instanceof RangeError) throw apiError(422, "invalid_physics_input", e.message, null);
     throw e;
   }
-  const d = (x: number) => toDecimalString(x);
-  return {
-    gap: check.gapIndex,
-    kPiOverA: check.kPiOverA,
-    firstOrder: { gapEv: d(check.firstOrder.gapEv), lowerEv: d(check.firstOrder.lowerEv), upperEv: d(check.firstOrder.upperEv) },
-    centralEquation: {
-      gapEv: d(check.centralEquation.gapEv), lowerEv: d(check.centralEquation.lowerEv), upperEv: d(check.centralEquation.upperEv),
-      planeWaves: check.centralEquation.planeWaves, converged: check.centralEquation.converged,
-    },
-    statedGapEv: check.statedGapEv === null ? null : d(check.statedGapEv),
-    toleranceEv: d(check.toleranceEv),
-    residualEv: check.residualEv === null ? null : d(check.residualEv),
-    verdict: check.verdict,
-    notes: check.notes,
-    codataEdition: CODATA_EDITION,
-  };
+  const { notes, codataEdition, ...figures } = nfeCheckFigures(check);
+  return { gap: check.gapIndex, kPiOverA: check.kPiOverA, ...figures, verdict: check.verdict, notes, codataEdition };
 }

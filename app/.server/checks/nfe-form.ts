@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { toDecimalString } from "~/domain/decimal";
 import { parseExactDecimal } from "~/domain/exact-decimal";
-import { checkNfeGap, CODATA_EDITION, DEFAULT_NFE_TOLERANCE_EV, PhysicsInputError, zoneBoundaryEnergyEv, type Verdict } from "~/domain/physics";
+import { checkNfeGap, CODATA_EDITION, DEFAULT_NFE_TOLERANCE_EV, PhysicsInputError, zoneBoundaryEnergyEv, type NfeCheck, type Verdict } from "~/domain/physics";
 
 // The interactive nearly-free-electron check: its query string (a GET form, so it works without JavaScript and
 // every result has an address) read into the physics module's inputs, and the result as plain data.
@@ -148,6 +148,23 @@ export function nfeQueryOf(v: NfeFormValues): URLSearchParams {
 
 const sentence = (message: string) => `${message.charAt(0).toUpperCase()}${message.slice(1)}.`;
 
+/** The figures of a nearly-free-electron check as decimal strings, as the page, the API and the command line give them. */
+export function nfeCheckFigures(check: NfeCheck) {
+  const d = (x: number) => toDecimalString(x);
+  return {
+    firstOrder: { gapEv: d(check.firstOrder.gapEv), lowerEv: d(check.firstOrder.lowerEv), upperEv: d(check.firstOrder.upperEv) },
+    centralEquation: {
+      gapEv: d(check.centralEquation.gapEv), lowerEv: d(check.centralEquation.lowerEv), upperEv: d(check.centralEquation.upperEv),
+      planeWaves: check.centralEquation.planeWaves, converged: check.centralEquation.converged,
+    },
+    statedGapEv: check.statedGapEv === null ? null : d(check.statedGapEv),
+    toleranceEv: d(check.toleranceEv),
+    residualEv: check.residualEv === null ? null : d(check.residualEv),
+    notes: check.notes,
+    codataEdition: CODATA_EDITION,
+  };
+}
+
 /** Runs the check for the page: the same physics module as the API and the command line. */
 export function runNfePage(params: URLSearchParams): NfePageData {
   const { values, errors, input } = readNfeQuery(params);
@@ -166,16 +183,7 @@ export function runNfePage(params: URLSearchParams): NfePageData {
         massM0: input.massM0 ?? 1,
         coefficients: [...input.coefficients].sort((a, b) => a.n - b.n),
         zoneBoundaryEv: d(zoneBoundaryEnergyEv(input.periodAngstrom, input.massM0)),
-        firstOrder: { gapEv: d(check.firstOrder.gapEv), lowerEv: d(check.firstOrder.lowerEv), upperEv: d(check.firstOrder.upperEv) },
-        centralEquation: {
-          gapEv: d(check.centralEquation.gapEv), lowerEv: d(check.centralEquation.lowerEv), upperEv: d(check.centralEquation.upperEv),
-          planeWaves: check.centralEquation.planeWaves, converged: check.centralEquation.converged,
-        },
-        statedGapEv: check.statedGapEv === null ? null : d(check.statedGapEv),
-        toleranceEv: d(check.toleranceEv),
-        residualEv: check.residualEv === null ? null : d(check.residualEv),
-        notes: check.notes,
-        codataEdition: CODATA_EDITION,
+        ...nfeCheckFigures(check),
       },
     };
   } catch (e) {
