@@ -22,7 +22,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const page = await loadMaterialPage(db(), key);
   if (!page) throw data({ message: `No material is filed under “${key}”.` }, { status: 404 });
   const record = compare.cmp ? page.records.find((r) => r.id === compare.cmp) : undefined;
-  const pair = record ? pickRevisionPair(record.revisions, { from: search.get("from"), to: search.get("to") }) : null;
+  const asked = search.has("from") || search.has("to");
+  const pair = record && asked ? pickRevisionPair(record.revisions, { from: search.get("from"), to: search.get("to") }) : null;
   const derived = await loadDerivedValues(page.material.key, search);
   return { ...page, compare: record && pair ? { recordId: record.id, pair } : null, derived };
 }
