@@ -182,7 +182,7 @@ export const DEMO_RECORDS: DemoRecord[] = [
     ],
   },
   v01("GaAs", "eg", "1.519", "eV", { valley: "G", revision: { validFromK: "0", validToK: "400", notes: `${V01_NOTE} ${TEAM_FIT_RANGE}` } }),
-  v01("GaAs", "varshni_alpha", "540.5", "µeV/K", { valley: "G", revision: { validFromK: "0", validToK: "400", notes: `Typed in µeV/K from a slide, stored as 0.5405 meV/K. ${V01_NOTE} ${TEAM_FIT_RANGE}` } }),
+  v01("GaAs", "varshni_alpha", "540.5", "µeV/K", { valley: "G", revision: { validFromK: "0", validToK: "400", notes: `Typed in µeV/K rather than the paper's meV/K so that the demo shows an exact unit conversion: stored as 0.5405 meV/K. ${V01_NOTE} ${TEAM_FIT_RANGE}` } }),
   v01("GaAs", "varshni_beta", "204", "K", { valley: "G", revision: { validFromK: "0", validToK: "400", notes: `${V01_NOTE} ${TEAM_FIT_RANGE}` } }),
   v01("GaAs", "eg", "1.981", "eV", { valley: "X" }),
   v01("GaAs", "varshni_alpha", "0.460", "meV/K", { valley: "X" }),
@@ -202,7 +202,7 @@ export const DEMO_RECORDS: DemoRecord[] = [
     material: "GaAs", quantity: "lattice_a", temperatureK: "300",
     history: [
       { value: "5.6533", unit: "Å", method: "compilation", source: "SzeNg", locator: "Appendix table of semiconductor properties at 300 K", notes: "Handbook value, from memory.", by: "tomas.okafor", approver: "ravi.menon", on: "2025-09-16" },
-      { value: "0.565325", unit: "nm", method: "compilation", source: "V01", locator: "GaAs parameter table", notes: `Typed in nm, stored exactly as 5.65325 Å; one more digit than the handbook value. ${V01_NOTE}`, by: "mei.tanaka", approver: "hanna.lindqvist", on: "2025-10-02" },
+      { value: "0.565325", unit: "nm", method: "compilation", source: "V01", locator: "GaAs parameter table", notes: `Typed in nm rather than the paper's Å so that the demo shows an exact unit conversion: stored as 5.65325 Å, one more digit than the handbook value. ${V01_NOTE}`, by: "mei.tanaka", approver: "hanna.lindqvist", on: "2025-10-02" },
     ],
   },
   {

@@ -1,8 +1,9 @@
 import { describe, expect, it } from "vitest";
 import { doiUrl, formatCslReference, parseDoi, parseReportNumber, sameDoi, shortSourceLabel, type CslItem } from "./citations";
 
-// DOI syntax: "10." + registrant code + "/" + suffix (DOI Handbook §2.2, common practice). The DOIs of
-// [V01] and [CODATA18] are from check-values.md; the others only exercise the format.
+// DOI syntax: "10." + registrant code + "/" + suffix (DOI Handbook §2.2, common practice). The DOIs are those of
+// [V01] Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001) and [CODATA18] Tiesinga et al., Rev. Mod. Phys.
+// 93, 025010 (2021); the others only exercise the format.
 describe("parseDoi", () => {
   it.each([
     ["10.1063/1.1368156", "10.1063/1.1368156"], // [V01]

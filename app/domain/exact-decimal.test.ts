@@ -3,6 +3,7 @@ import { describe, expect, it } from "vitest";
 import { decimalColumnValue, normalisedDecimalKey, parseExactDecimal, sameNumber, scaleExact, exactDecimal } from "./exact-decimal";
 
 // Significant digits follow common practice: leading zeros do not count, stated trailing zeros do.
+// [V01] Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001): GaAs table values from memory.
 describe("parseExactDecimal", () => {
   it.each([
     ["5.65325", "5.65325", 6], // GaAs a(300 K) [V01]

@@ -2,6 +2,7 @@ import { describe, expect, it } from "vitest";
 import { quantityByKey } from "./quantities";
 import { parseRegistryView, prepareRevision, registryViewSearch, sourceInputSchema } from "./registry-schemas";
 
+// [V01] Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001): GaAs table values from memory.
 const q = (key: string) => quantityByKey(key)!;
 const base = { method: "compilation", sourceId: 1 };
 

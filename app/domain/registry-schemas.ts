@@ -63,11 +63,9 @@ const SMALLEST_PERIOD_ANGSTROM = Number(smallestResolvablePeriodAngstrom(1, 1).t
 
 export const positiveId = z.coerce.number().int().positive().max(2_147_483_647);
 
-/** Two revisions of one record to show side by side: ?cmp=<record>&from=<revision>&to=<revision>. */
+/** The record whose history shows two revisions side by side: ?cmp=<record>&from=<revision>&to=<revision> (the pair: revision-pair.ts). */
 export const compareSchema = z.object({
   cmp: positiveId.optional().catch(undefined),
-  from: positiveId.optional().catch(undefined),
-  to: positiveId.optional().catch(undefined),
 });
 
 // Every cap with a message a person reads in the form, the CSV preview and the API.

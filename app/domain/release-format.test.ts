@@ -25,7 +25,7 @@ function content(): ReleaseContent {
         material: { key: "GaAs", name: "Gallium arsenide", formula: "GaAs" },
         quantity: { key: "eg", symbol: "Eg", name: "Band gap" },
         value: "1.519", unit: "eV", uncertainty: "0.001", temperatureK: null, temperatureKind: "fit0", valley: "G", composition: null,
-        validFromK: "0", validToK: "300", method: "compilation", source: v01, locator: "Table III", notes: "=HYPERLINK(\"http://example.test\",\"x\")", approvedAt: "2026-02-01T10:00:00.000Z",
+        validFromK: "0", validToK: "300", method: "compilation", source: v01, locator: "GaAs parameter table", notes: "=HYPERLINK(\"http://example.test\",\"x\")", approvedAt: "2026-02-01T10:00:00.000Z",
       },
       {
         recordId: 12, revisionId: 42, revisionSeq: 1,

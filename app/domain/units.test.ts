@@ -6,6 +6,8 @@ import {
   normaliseUnit, type AcceptedUnit,
 } from "./units";
 
+// [V01] Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001): GaAs table values from memory.
+
 // Independent reference: mathjs with BigNumber arithmetic and its own unit definitions (SI prefixes are common practice).
 const math = create(all, { number: "BigNumber", precision: 64 });
 function referenceConversion(value: string, fromUnit: string, toUnit: string): string {

@@ -9,7 +9,8 @@ import { conditionsLabel, StateBadge, ValueWithUnit } from "~/components/registr
 import { SimulationCaution } from "~/components/registry/material-overview";
 import { Provenance } from "~/components/registry/provenance";
 import { RevisionHistory } from "~/components/registry/revision-history";
-import { compareSchema, positiveId } from "~/domain/registry-schemas";
+import { positiveId } from "~/domain/registry-schemas";
+import { pickRevisionPair } from "~/domain/revision-pair";
 
 export const meta: Route.MetaFunction = ({ data: d }) => [
   { title: d ? `${d.material.key} ${d.record.quantity.symbol} (record ${d.record.id}) · Bandledger` : "Record · Bandledger" },
@@ -17,18 +18,19 @@ export const meta: Route.MetaFunction = ({ data: d }) => [
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const id = positiveId.safeParse(params.id);
-  const compare = compareSchema.parse(Object.fromEntries(new URL(request.url).searchParams));
+  const search = new URL(request.url).searchParams;
   const user = await requireUser(request);
   const page = id.success ? await loadRecord(db(), id.data) : null;
   if (!page) throw data({ message: `There is no record ${params.id}.` }, { status: 404 });
-  const has = (rev?: number) => rev !== undefined && page.record.revisions.some((r) => r.id === rev);
+  const asked = search.has("from") || search.has("to");
+  const pair = asked ? pickRevisionPair(page.record.revisions, { from: search.get("from"), to: search.get("to") }) : null;
   const checks = await checkReportForRecord(page.record.id);
   const canPropose = hasRole(user, "contributor") && page.record.status !== "retired";
-  return { ...page, selection: has(compare.from) && has(compare.to) ? { from: compare.from!, to: compare.to! } : null, checks, canPropose };
+  return { ...page, pair, checks, canPropose };
 }
 
 export default function RecordPage({ loaderData }: Route.ComponentProps) {
-  const { material, record, selection, checks, canPropose } = loaderData;
+  const { material, record, pair, checks, canPropose } = loaderData;
   const q = record.quantity;
   const head = record.revisions[0];
   const current = record.revisions.find((r) => r.state === "current");
@@ -74,7 +76,7 @@ export default function RecordPage({ loaderData }: Route.ComponentProps) {
       <CheckReportView report={checks.report} message={checks.message} />
       <section id={`record-${record.id}`} className="card p-4" aria-labelledby="history-heading">
         <h2 id="history-heading" className="mb-2 font-semibold">History, newest first</h2>
-        <RevisionHistory recordId={record.id} revisions={record.revisions} unit={q.canonicalUnit} action={`/records/${record.id}`} selection={selection} />
+        <RevisionHistory recordId={record.id} revisions={record.revisions} unit={q.canonicalUnit} action={`/records/${record.id}`} pair={pair} />
       </section>
     </div>
   );

@@ -8,9 +8,10 @@ import { artifactPath, launchBrowser, expectVisible } from "../support/browser";
 import { HttpClient } from "../support/route-access";
 import { signInAs } from "../support/session";
 
-// Values come from the demo registry and the check-values file:
-//   [V01] Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001), from memory; [Var67] Varshni (1967);
-//   [Kittel] ch. 7: two-band gap 2|U_G|, and a potential U0·cos(Gx) has U_G = U0/2; calc: worked examples.
+// Values come from the demo registry and these published sources:
+//   [V01] Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001), from memory; [Var67] Varshni, Physica 34, 149 (1967);
+//   [Kittel] Kittel, Introduction to Solid State Physics, 8th ed., ch. 7: two-band gap 2|U_G|, and a potential U0·cos(Gx)
+//   has U_G = U0/2; calc: computed from those inputs with the formula named.
 
 const appUrl = inject("appUrl");
 let browser: BrowserContext;

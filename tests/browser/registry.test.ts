@@ -1,5 +1,5 @@
 import mysql from "mysql2/promise";
-import type { BrowserContext, Page } from "playwright-core";
+import type { BrowserContext, Locator, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
 import { artifactPath, launchBrowser, expectVisible } from "../support/browser";
 import { signInAs } from "../support/session";
@@ -23,6 +23,17 @@ afterAll(async () => browser?.close());
 
 async function rowTexts(page: Page): Promise<string[]> {
   return page.locator("table tbody tr").allInnerTexts();
+}
+
+// The text of a select's chosen option, as a person sees it.
+const picked = (select: Locator) => select.evaluate((s) => (s as HTMLSelectElement).selectedOptions[0]?.textContent ?? "");
+const isFocused = (target: Locator) => target.evaluate((el) => el === document.activeElement);
+
+// A field marked invalid whose described-by message says what is wrong.
+async function expectFieldError(field: Locator, message: RegExp) {
+  await expect(field.getAttribute("aria-invalid")).resolves.toBe("true");
+  const id = await field.getAttribute("aria-describedby");
+  await expect(field.page().locator(`[id="${id}"]`).innerText()).resolves.toMatch(message);
 }
 
 describe("the registry in Chromium, as a reader", () => {
@@ -86,9 +97,19 @@ describe("the registry in Chromium, as a reader", () => {
     const item = page.locator("li[data-record]", { hasText: "1.4225" }).filter({ hasText: "300 K" });
     await expect(item.count()).resolves.toBe(1);
     await item.locator("summary").click();
-    await item.getByLabel("Compare from revision 1").check();
-    await item.getByLabel("Compare to revision 3").check();
-    await item.getByRole("button", { name: "Compare the two selected revisions" }).click();
+    const first = item.getByLabel("Show revision", { exact: true });
+    const second = item.getByLabel("beside revision", { exact: true });
+    await expect(picked(first)).resolves.toBe("2 · superseded");
+    await expect(picked(second)).resolves.toBe("3 · current");
+    // Keyboard only: the options run newest first, so one step down from revision 2 is revision 1.
+    await first.focus();
+    await page.keyboard.press("ArrowDown");
+    await expect(picked(first)).resolves.toBe("1 · superseded");
+    await page.keyboard.press("Tab");
+    await expect(isFocused(second)).resolves.toBe(true);
+    await page.keyboard.press("Tab");
+    await expect(isFocused(item.getByRole("button", { name: "Show side by side" }))).resolves.toBe(true);
+    await page.keyboard.press("Enter");
     await page.waitForURL((u) => ["cmp", "from", "to"].every((k) => u.searchParams.has(k)));
 
     const diff = page.getByTestId("revision-diff");
@@ -101,6 +122,64 @@ describe("the registry in Chromium, as a reader", () => {
     await expect(diff.locator("tr", { has: page.locator("th", { hasText: /^Source/ }) }).innerText()).resolves.toMatch(/Sze & Ng 2007[\s\S]*Vurgaftman et al\. 2001/);
     await item.screenshot({ path: artifactPath("material-compare-record.png") });
     await page.screenshot({ path: artifactPath("material-compare.png"), fullPage: true });
+
+    // The same revision twice: a message at the second select, no comparison, the picks kept.
+    const again = page.locator("li[data-record]", { hasText: "1.4225" }).filter({ hasText: "300 K" });
+    await again.getByLabel("beside revision", { exact: true }).focus();
+    await page.keyboard.press("ArrowDown");
+    await page.keyboard.press("ArrowDown");
+    await expect(picked(again.getByLabel("beside revision", { exact: true }))).resolves.toBe("1 · superseded");
+    await page.keyboard.press("Tab");
+    await page.keyboard.press("Enter");
+    await page.waitForURL((u) => u.searchParams.get("from") === u.searchParams.get("to"));
+    await expectFieldError(again.getByLabel("beside revision", { exact: true }), /Revision 1 is already the first pick/);
+    await expect(page.getByTestId("revision-diff").count()).resolves.toBe(0);
+    await again.screenshot({ path: artifactPath("material-compare-same.png") });
+
+    // A hand-edited address with a revision id that does not exist: the page, with the message at that field.
+    const url = new URL(page.url());
+    url.searchParams.set("from", "999999");
+    const edited = await page.goto(url.toString());
+    expect(edited?.status()).toBe(200);
+    const item3 = page.locator("li[data-record]", { hasText: "1.4225" }).filter({ hasText: "300 K" });
+    await expectFieldError(item3.getByLabel("Show revision", { exact: true }), /revision id 999999, which is not in this record's history/);
+    await page.close();
+  });
+
+  it("puts two revisions side by side on the record page, with the keyboard, and keeps old comparison links working", async () => {
+    const page = await browser.newPage();
+    await page.goto(`${appUrl()}/materials/GaAs`);
+    const item = page.locator("li[data-record]", { hasText: "1.4225" }).filter({ hasText: "300 K" });
+    const recordId = await item.getAttribute("data-record");
+    await page.goto(`${appUrl()}/records/${recordId}`);
+    await page.getByRole("heading", { name: "History, newest first" }).waitFor();
+    const first = page.getByLabel("Show revision", { exact: true });
+    const second = page.getByLabel("beside revision", { exact: true });
+    await expect(picked(first)).resolves.toBe("2 · superseded");
+    await expect(picked(second)).resolves.toBe("3 · current");
+    await second.focus();
+    await page.keyboard.press("ArrowDown");
+    await page.keyboard.press("ArrowDown");
+    await page.keyboard.press("Shift+Tab");
+    await page.keyboard.press("ArrowUp");
+    await expect(picked(first)).resolves.toBe("3 · current");
+    await expect(picked(second)).resolves.toBe("1 · superseded");
+    await second.focus();
+    await page.keyboard.press("Tab");
+    await page.keyboard.press("Enter");
+    await page.waitForURL((u) => u.searchParams.has("from"));
+    const diff = page.getByTestId("revision-diff");
+    await expect(diff.locator("caption").innerText()).resolves.toMatch(/Revision 3 compared with revision 1/);
+    await page.screenshot({ path: artifactPath("record-compare.png"), fullPage: true });
+
+    // A link made before the selects (cmp, from and to as revision ids) opens the same comparison.
+    const ids = await page.locator(`#record-${recordId}-pick-from option`).evaluateAll((os) => os.map((o) => (o as HTMLOptionElement).value));
+    const old = await page.goto(`${appUrl()}/records/${recordId}?cmp=${recordId}&from=${ids[2]}&to=${ids[0]}`);
+    expect(old?.status()).toBe(200);
+    await expect(page.getByTestId("revision-diff").locator("caption").innerText()).resolves.toMatch(/Revision 1 compared with revision 3/);
+    const garbled = await page.goto(`${appUrl()}/records/${recordId}?from=abc&to=${ids[0]}`);
+    expect(garbled?.status()).toBe(200);
+    await expectFieldError(page.getByLabel("Show revision", { exact: true }), /“abc” is not a revision of this record/);
     await page.close();
   });
 

@@ -10,9 +10,9 @@ import { freshDatabase, type TestDatabase } from "../support/db";
 //   [V01]   Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001) — table values from memory.
 //   [Var67] Varshni, Physica 34, 149 (1967).   [Kane57] Kane, J. Phys. Chem. Solids 1, 249 (1957).
 //   [Kittel] Kittel, Introduction to Solid State Physics, 8th ed., ch. 7.   [Vegard21] Vegard, Z. Phys. 5, 17 (1921).
-//   calc: computed from the listed inputs with the formula named (check-values.md, worked examples).
-//   [CB66]  Cohen & Bergstresser, Phys. Rev. 141, 789 (1966) — form factors (Ry) from memory; the caution that a
-//           three-form-factor local model reproduces the main gaps to about 0.1–0.3 eV. [CODATA18] 1 Ry = 13.605693122994 eV.
+//   calc: computed from the listed inputs with the formula named beside the check.
+//   [CB66]  Cohen & Bergstresser, Phys. Rev. 141, 789 (1966) — form factors (Ry) from memory; a three-form-factor local
+//           model reproduces the main gaps only to about 0.1–0.3 eV (common practice, from memory). [CODATA18] 1 Ry = 13.605693122994 eV.
 
 let t: TestDatabase;
 let checks: typeof import("~/.server/checks");

@@ -16,7 +16,7 @@ import { tableChecksums } from "../support/checksums";
 import { freshDatabase, type TestDatabase } from "../support/db";
 
 // The corpus values are [V01] (Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001), from memory) and
-// values calculated from it ([Var67] Varshni, [Vegard21] Vegard): see ../shared/reference/check-values.md.
+// values calculated from it ([Var67] Varshni, Physica 34, 149 (1967); [Vegard21] Vegard, Z. Phys. 5, 17 (1921)).
 const CORPUS = path.join("tests", "fixtures", "csv");
 const HEADER = "material,quantity,temperature_k,valley,composition_x,value,unit,uncertainty,method,source,source_title,locator,notes";
 const ROW = "GaAs,lattice_a,300,,,5.65325,Å,,compilation,10.1063/1.1368156,Band parameters for III-V compound semiconductors and their alloys,GaAs parameter table,";

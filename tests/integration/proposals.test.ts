@@ -19,7 +19,7 @@ import { loadDemo } from "../../seed-data/load";
 import { freshDatabase, type TestDatabase } from "../support/db";
 import { readMailbox } from "../support/mailbox";
 
-// Values proposed here, and their sources (full references: ../shared/reference/check-values.md):
+// Values proposed here, and their published sources:
 // [V01] Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001), doi:10.1063/1.1368156, values from memory;
 // [Var67] Varshni, Physica 34, 149 (1967): GaAs Eg(Γ, 300 K) = 1.519 − 5.405e-4·300²/(300 + 204) = 1.4224821 eV (calc);
 // [Vegard21] Vegard, Z. Phys. 5, 17 (1921): Al(0.3)Ga(0.7)As a = 5.655605 Å with the [V01] end members (calc).

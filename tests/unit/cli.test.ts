@@ -3,8 +3,8 @@ import { fileURLToPath } from "node:url";
 import { describe, expect, it } from "vitest";
 import { main } from "../../app/cli/main";
 
-// The real command, as `npm run bandledger -- …` runs it. Check values from /work/shared/reference/check-values.md:
-// [V01] Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001); [Var67] Varshni, Physica 34, 149 (1967);
+// The real command, as `npm run bandledger -- …` runs it. Check values and their published sources:
+// [V01] Vurgaftman, Meyer, Ram-Mohan, J. Appl. Phys. 89, 5815 (2001), table values from memory; [Var67] Varshni, Physica 34, 149 (1967);
 // [Kane57] Kane, J. Phys. Chem. Solids 1, 249 (1957); [Vegard21] Vegard, Z. Phys. 5, 17 (1921);
 // [AS] Abramowitz & Stegun, Table 20.1; [CB66] Cohen & Bergstresser, Phys. Rev. 141, 789 (1966), table of form
 // factors (values and table number from memory); "calc" = computed from the listed inputs with the formula named.

@@ -41,7 +41,7 @@ export type NfePageResult = {
 
 export type NfePageData = { values: NfeFormValues; errors: NfeFormErrors; result: NfePageResult | null };
 
-/** What the page shows on a first visit: the two-band example of the check-values file. */
+/** What the page shows on a first visit: the two-band example of Kittel ch. 7 (U_G = 0.1 eV, a = 5.65325 Å, gap 2|U_G|). */
 export const NFE_EXAMPLE: NfeFormValues = {
   period: "5.65325", unit: "angstrom", coefficients: [{ n: "1", u: "0.1" }], gap: "1", mass: "1", stated: "", tolerance: "0.01",
 };

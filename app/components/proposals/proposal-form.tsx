@@ -339,7 +339,7 @@ export function ProposalForm(props: {
             {text("source.year", "Year", { inputMode: "decimal", placeholder: "optional" })}
           </>
         )}
-        {text("locator", "Where in the source", { className: "sm:col-span-2", placeholder: "page, table or figure, e.g. Table III, p. 5832" })}
+        {text("locator", "Where in the source", { className: "sm:col-span-2", placeholder: "page, table or figure, e.g. Table 2, or Fig. 4 and p. 12" })}
       </fieldset>
 
       {!isRetirement ? (

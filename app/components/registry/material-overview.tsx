@@ -4,7 +4,8 @@ import type { RecordWithHistory } from "~/.server/registry/revision-rows";
 import { quantityByKey } from "~/domain/quantities";
 import { conditionsLabel, formatDay, methodLabel, StateBadge, UncertaintyText, ValueWithUnit } from "./format";
 import { Provenance } from "./provenance";
-import { RevisionHistory, type CompareSelection } from "./revision-history";
+import type { RevisionPair } from "~/domain/revision-pair";
+import { RevisionHistory } from "./revision-history";
 import { SourceLink } from "./source-link";
 
 const STRUCTURES = { diamond: "diamond", zinc_blende: "zinc blende", wurtzite: "wurtzite" } as const;
@@ -42,11 +43,11 @@ export function MaterialHeader({ material }: { material: MaterialDetail }) {
   );
 }
 
-function RecordItem({ record, selection, action }: { record: RecordWithHistory; selection: CompareSelection; action: string }) {
+function RecordItem({ record, pair, action }: { record: RecordWithHistory; pair: RevisionPair | null; action: string }) {
   const head = record.revisions[0];
   const q = record.quantity;
   const label = conditionsLabel({ quantityKey: q.key, valley: record.valley, temperatureK: record.temperatureK, composition: record.composition });
-  const open = selection !== null;
+  const open = pair !== null;
   return (
     <li id={`record-${record.id}`} className="py-3" data-record={record.id}>
       <div className="grid gap-x-4 gap-y-1 sm:grid-cols-[12rem_11rem_9rem_1fr]">
@@ -82,7 +83,7 @@ function RecordItem({ record, selection, action }: { record: RecordWithHistory; 
               <a href={`/records/${record.id}`}>Record page</a>
             </p>
           </div>
-          <RevisionHistory recordId={record.id} revisions={record.revisions} unit={q.canonicalUnit} action={action} selection={selection} />
+          <RevisionHistory recordId={record.id} revisions={record.revisions} unit={q.canonicalUnit} action={action} pair={pair} />
         </div>
       </details>
     </li>
@@ -102,13 +103,13 @@ function groupByQuantity(records: RecordWithHistory[]) {
 export function MaterialOverview({ material, records, compare, action, derived }: {
   material: MaterialDetail;
   records: RecordWithHistory[];
-  compare: { recordId: number; from: number; to: number } | null;
+  compare: { recordId: number; pair: RevisionPair } | null;
   action: string;
   derived?: ReactNode;
 }) {
   const active = records.filter((r) => r.status === "active");
   const retired = records.filter((r) => r.status === "retired");
-  const selectionFor = (id: number): CompareSelection => (compare && compare.recordId === id ? { from: compare.from, to: compare.to } : null);
+  const pairFor = (id: number) => (compare && compare.recordId === id ? compare.pair : null);
   return (
     <div className="space-y-5">
       <MaterialHeader material={material} />
@@ -130,7 +131,7 @@ export function MaterialOverview({ material, records, compare, action, derived }
                   <p className="text-xs text-muted">{quantityByKey(q.key)?.description}</p>
                   <ul className="divide-y divide-rule">
                     {group.map((r) => (
-                      <RecordItem key={r.id} record={r} selection={selectionFor(r.id)} action={action} />
+                      <RecordItem key={r.id} record={r} pair={pairFor(r.id)} action={action} />
                     ))}
                   </ul>
                 </section>
@@ -145,7 +146,7 @@ export function MaterialOverview({ material, records, compare, action, derived }
           <p className="text-xs text-muted">No longer in use; kept with their history.</p>
           <ul className="divide-y divide-rule">
             {retired.map((r) => (
-              <RecordItem key={r.id} record={r} selection={selectionFor(r.id)} action={action} />
+              <RecordItem key={r.id} record={r} pair={pairFor(r.id)} action={action} />
             ))}
           </ul>
         </section>

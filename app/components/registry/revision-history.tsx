@@ -1,70 +1,80 @@
+import { FieldError, invalidProps } from "~/components/field-error";
 import type { StoredRevisionView } from "~/domain/revision-view";
+import { defaultRevisionPair, pairIsShown, type RevisionPair } from "~/domain/revision-pair";
 import { formatDay, StateBadge, ValueWithUnit } from "./format";
 import { RevisionDiff } from "./revision-diff";
 import { SourceLink } from "./source-link";
 
-export type CompareSelection = { from: number; to: number } | null;
-
 /**
- * A record's revisions, newest first, with a GET form that picks any two (two radio groups) and shows them side
- * by side. A plain form, so comparing works without JavaScript and the address can be shared.
+ * A record's revisions, newest first, under a small GET form of two selects ("Show revision n beside revision m")
+ * that puts any two side by side. A plain form, so it works without JavaScript and the address can be shared;
+ * `pair` is what the address asked for (null when it asked nothing of this record).
  */
-export function RevisionHistory({ recordId, revisions, unit, action, selection }: { recordId: number; revisions: StoredRevisionView[]; unit: string; action: string; selection: CompareSelection }) {
-  const from = selection && revisions.find((r) => r.id === selection.from);
-  const to = selection && revisions.find((r) => r.id === selection.to);
-  const defaultFrom = from?.id ?? revisions[1]?.id ?? revisions[0]?.id;
-  const defaultTo = to?.id ?? revisions[0]?.id;
-  const canCompare = revisions.length > 1;
+export function RevisionHistory({ recordId, revisions, unit, action, pair }: { recordId: number; revisions: StoredRevisionView[]; unit: string; action: string; pair: RevisionPair | null }) {
+  const fallback = defaultRevisionPair(revisions);
+  const fromId = pair?.from ?? fallback.from;
+  const toId = pair?.to ?? fallback.to;
+  const shown = pair && pairIsShown(pair) ? { from: revisions.find((r) => r.id === pair.from)!, to: revisions.find((r) => r.id === pair.to)! } : null;
+  const base = `record-${recordId}-pick`;
+  const options = revisions.map((r) => (
+    <option key={r.id} value={r.id}>
+      {r.seq} · {r.kind === "retirement" ? "retirement" : r.state}
+    </option>
+  ));
   return (
     <div>
-      <form method="get" action={`${action}#record-${recordId}`} aria-label={`Compare revisions of record ${recordId}`}>
-        <input type="hidden" name="cmp" value={recordId} />
-        <table className="w-full border-collapse text-sm [&_td]:px-2 [&_td]:py-1 [&_th]:px-2 [&_th]:py-1">
-          <caption className="sr-only">Revisions of record {recordId}, newest first</caption>
-          <thead>
-            <tr className="border-b border-rule text-left text-xs text-muted uppercase">
-              {canCompare ? (
-                <>
-                  <th scope="col">From</th>
-                  <th scope="col">To</th>
-                </>
-              ) : null}
-              <th scope="col">Rev</th>
-              <th scope="col">Value</th>
-              <th scope="col">State</th>
-              <th scope="col">Source</th>
-              <th scope="col">Approved</th>
+      {revisions.length > 1 ? (
+        <form
+          key={`${fromId}-${toId}`}
+          method="get"
+          action={`${action}#record-${recordId}`}
+          aria-label={`Show two revisions of record ${recordId} side by side`}
+          className="mb-3 flex flex-wrap items-start gap-x-3 gap-y-2 text-sm"
+        >
+          <input type="hidden" name="cmp" value={recordId} />
+          <div className="max-w-64">
+            <label htmlFor={`${base}-from`} className="mr-1.5">Show revision</label>
+            <select id={`${base}-from`} name="from" defaultValue={fromId ?? undefined} className="field inline-block w-auto" {...invalidProps(`${base}-from-error`, pair?.errors.from)}>
+              {options}
+            </select>
+            <FieldError id={`${base}-from-error`} message={pair?.errors.from} />
+          </div>
+          <div className="max-w-64">
+            <label htmlFor={`${base}-to`} className="mr-1.5">beside revision</label>
+            <select id={`${base}-to`} name="to" defaultValue={toId ?? undefined} className="field inline-block w-auto" {...invalidProps(`${base}-to-error`, pair?.errors.to)}>
+              {options}
+            </select>
+            <FieldError id={`${base}-to-error`} message={pair?.errors.to} />
+          </div>
+          <button type="submit" className="btn">Show side by side</button>
+        </form>
+      ) : (
+        <p className="mb-2 text-xs text-muted">One revision so far: nothing to set beside it yet.</p>
+      )}
+      {shown ? <RevisionDiff from={shown.from} to={shown.to} unit={unit} /> : null}
+      <table className="mt-3 w-full border-collapse text-sm [&_td]:px-2 [&_td]:py-1 [&_th]:px-2 [&_th]:py-1">
+        <caption className="sr-only">Revisions of record {recordId}, newest first</caption>
+        <thead>
+          <tr className="border-b border-rule text-left text-xs text-muted uppercase">
+            <th scope="col">Rev</th>
+            <th scope="col">Value</th>
+            <th scope="col">State</th>
+            <th scope="col">Source</th>
+            <th scope="col">Approved</th>
+          </tr>
+        </thead>
+        <tbody>
+          {revisions.map((r) => (
+            <tr key={r.id} className="border-t border-rule">
+              <td className="figure">{r.seq}</td>
+              <td>{r.kind === "retirement" ? <span className="text-fail">retirement</span> : <ValueWithUnit value={r.value} unit={unit} />}</td>
+              <td><StateBadge state={r.state} /></td>
+              <td><SourceLink source={r.source} locator={r.locator} /></td>
+              <td className="whitespace-nowrap"><span className="figure">{formatDay(r.approvedAt)}</span> <span className="text-muted">{r.approvedBy}</span></td>
             </tr>
-          </thead>
-          <tbody>
-            {revisions.map((r) => (
-              <tr key={r.id} className="border-t border-rule">
-                {canCompare ? (
-                  <>
-                    <td>
-                      <input type="radio" name="from" value={r.id} defaultChecked={r.id === defaultFrom} aria-label={`Compare from revision ${r.seq}`} />
-                    </td>
-                    <td>
-                      <input type="radio" name="to" value={r.id} defaultChecked={r.id === defaultTo} aria-label={`Compare to revision ${r.seq}`} />
-                    </td>
-                  </>
-                ) : null}
-                <td className="figure">{r.seq}</td>
-                <td>{r.kind === "retirement" ? <span className="text-fail">retirement</span> : <ValueWithUnit value={r.value} unit={unit} />}</td>
-                <td><StateBadge state={r.state} /></td>
-                <td><SourceLink source={r.source} locator={r.locator} /></td>
-                <td className="whitespace-nowrap"><span className="figure">{formatDay(r.approvedAt)}</span> <span className="text-muted">{r.approvedBy}</span></td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
-        {canCompare ? (
-          <button type="submit" className="btn mt-2">Compare the two selected revisions</button>
-        ) : (
-          <p className="mt-2 text-xs text-muted">One revision so far: nothing to compare yet.</p>
-        )}
-      </form>
-      {from && to ? <RevisionDiff from={from} to={to} unit={unit} /> : null}
+          ))}
+        </tbody>
+      </table>
     </div>
   );
 }

@@ -11,7 +11,7 @@ import {
 import { varshniGap } from "./varshni";
 import { expectPrinted } from "./test-support";
 
-// Al(x)Ga(1−x)As [V01]: A = AlAs, B = GaAs.
+// Al(x)Ga(1−x)As [V01] (table values from memory): A = AlAs, B = GaAs.
 const algaas = { aAAngstrom: 5.6611, aBAngstrom: 5.65325 };
 const gammaBowing = { egAEv: 3.099, egBEv: 1.519, c0Ev: -0.127, c1Ev: 1.31 };
 const alas = { eg0Ev: 3.099, alphaMevPerK: 0.885, betaK: 530 };

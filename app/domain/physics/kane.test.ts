@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import { checkKaneMass, kaneInverseMass, kaneMassM0 } from "./kane";
 import { expectPrinted } from "./test-support";
 
-// GaAs [V01]: Ep = 28.8 eV, F = −1.94, Eg = 1.519 eV, Δso = 0.341 eV, m_e(Γ) = 0.067 m0.
+// GaAs [V01] (from memory): Ep = 28.8 eV, F = −1.94, Eg = 1.519 eV, Δso = 0.341 eV, m_e(Γ) = 0.067 m0.
 const gaas = { epEv: 28.8, f: -1.94, egEv: 1.519, deltaSoEv: 0.341 };
 
 describe("Kane mass [Kane57]", () => {

