@@ -48,7 +48,7 @@ export default function EditDraft({ loaderData, actionData }: Route.ComponentPro
       </header>
       {loaderData.stale ? (
         <p role="alert" className="rounded-[var(--radius-card)] border border-warn px-3 py-2 text-sm text-warn">
-          The record changed since this draft was started. <Link to={`/proposals/${proposalId}`}>Rebase it</Link> on the current value before you submit.
+          The record changed since this draft was started. <Link to={`/proposals/${proposalId}`}>Carry it forward</Link> to the current value before you submit.
         </p>
       ) : null}
       <ProposalForm

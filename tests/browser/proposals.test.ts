@@ -87,7 +87,7 @@ describe("a change from proposal to the registry, in Chromium", () => {
     await shoot(page, "proposal-submitted.png");
 
     const mail = await readLastMail(inject("mailboxDir"), "ravi.menon@kestrel-devices.test", { after: before });
-    expect(mail.subject).toBe("Review requested: AlAs · Band gap (Γ, 300 K)");
+    expect(mail.subject).toBe("AlAs · Band gap (Γ, 300 K): a proposal waits for your decision");
     expect(mail.text).toContain("3.003 eV → 3.00304 eV");
     const link = /https?:\/\/\S+\/proposals\/\d+/.exec(mail.text)?.[0];
     expect(link).toBe(`${appUrl}/proposals/${draft.id}`);
@@ -108,7 +108,7 @@ describe("a change from proposal to the registry, in Chromium", () => {
 
     expect(await d.select({ id: proposals.id }).from(proposals).where(and(eq(proposals.authorId, ids.tomas), eq(proposals.recordId, recordId)))).toHaveLength(1);
     const back = await readLastMail(inject("mailboxDir"), "tomas.okafor@kestrel-devices.test", { after: decided });
-    expect(back.subject).toBe("Approved: AlAs · Band gap (Γ, 300 K)");
+    expect(back.subject).toBe("AlAs · Band gap (Γ, 300 K): Ravi Menon approved your proposal");
 
     await review.goto(`${appUrl}/records/${recordId}`);
     const body = await review.locator("main").innerText();

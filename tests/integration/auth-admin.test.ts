@@ -114,8 +114,8 @@ describe("roles and deactivation", () => {
     // An assignment left behind by hand (or by an older version) gives a contributor no lead's rights.
     await t.db.insert(familyLeads).values({ userId: id, familyId: families[0].id });
     const lale = await HttpClient.signedIn(app.url, id);
-    const whoami = (await (await lale.get("/api/v1/whoami")).json()) as { user: { role: string; leadFamilyIds: number[] } };
-    expect(whoami.user).toMatchObject({ role: "contributor", leadFamilyIds: [] });
+    const account = (await (await lale.get("/api/v1/account")).json()) as { user: { role: string; leadFamilyIds: number[] } };
+    expect(account.user).toMatchObject({ role: "contributor", leadFamilyIds: [] });
     expect((await lale.get("/review")).status).toBe(403);
     await t.db.delete(familyLeads).where(eq(familyLeads.userId, id));
   });
@@ -188,7 +188,7 @@ describe("material families and lead assignments", () => {
     // Exactly the families family_leads holds for her, in id order: not another person's, not a constant.
     const held = (await t.db.select({ f: familyLeads.familyId }).from(familyLeads).where(eq(familyLeads.userId, ids.hanna))).map((r) => r.f).sort((a, b) => a - b);
     expect(held.length).toBeGreaterThan(1);
-    expect((await (await hanna.get("/api/v1/whoami")).json()).user.leadFamilyIds).toEqual(held);
+    expect((await (await hanna.get("/api/v1/account")).json()).user.leadFamilyIds).toEqual(held);
 
     expect((await admin.post("/admin/leads", { intent: "unassign", userId: String(ids.hanna), familyId: String(antimonides.id) })).status).toBe(302);
     expect(await t.db.select().from(familyLeads).where(and(eq(familyLeads.userId, ids.hanna), eq(familyLeads.familyId, antimonides.id)))).toEqual([]);

@@ -17,9 +17,9 @@ import { HttpClient } from "../support/route-access";
 const AT_ONCE = 50;
 const ROUNDS = rounds(1, 5);
 
-const STALE = /^The record has changed since this proposal was based on it: its current value is now \S+ Å \(revision \d+\)\. Its author must rebase the proposal first\.$/;
+const STALE = /^The record has changed since this proposal was based on it: its current value is now \S+ Å \(revision \d+\)\. Its author must carry it forward to the current value first\.$/;
 const DECIDED = /^This proposal was already (approved|rejected) by (Ravi Menon|Hanna Lindqvist|Inês Carvalho) \(\d{4}-\d\d-\d\d \d\d:\d\d UTC\); a decided proposal is not decided again\.$/;
-const CHANGED = "The proposal changed since you opened it (its author rebased or edited it); look at it again before you decide.";
+const CHANGED = "The proposal changed since you opened it (its author carried it forward or edited it); look at it again before you decide.";
 const SET_CONFLICT = "The set changed since you opened it (someone edited or froze it). Reload the page, check the members and try again.";
 
 let t: TestDatabase;
@@ -186,7 +186,7 @@ describe("authors rebasing stale proposals while leads approve them", () => {
       const answers = fulfilled(await allAtOnce(stale.flatMap((id, i): (() => Promise<Move>)[] => {
         const author = AUTHORS.find((a) => ids[a] === staleRows[i].author_id)!;
         return [
-          async () => ({ kind: "rebase", id, ...(await answerOf(as[author].post(`/proposals/${id}`, { intent: "rebase", version: String(versions[i]) }))) }),
+          async () => ({ kind: "rebase", id, ...(await answerOf(as[author].post(`/proposals/${id}`, { intent: "carry-forward", version: String(versions[i]) }))) }),
           async () => ({ kind: "approve", id, ...(await approve(LEADS[i % 3], id, versions[i] + 1)) }),
         ];
       })));
