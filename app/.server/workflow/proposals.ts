@@ -278,7 +278,7 @@ export async function isInvolved(ex: Executor, actor: Actor, facts: ProposalFact
   return Boolean(c);
 }
 
-/** The people in a proposal's thread: its author, everyone who commented, and whoever decided it. */
+/** The people in a proposal's thread: its author, everyone who added a remark, and whoever decided it. */
 async function threadPeople(ex: Executor, row: { id: number; authorId: number; decidedBy: number | null }): Promise<number[]> {
   const commenters = await ex.selectDistinct({ id: proposalComments.authorId }).from(proposalComments).where(eq(proposalComments.proposalId, row.id));
   return [row.authorId, ...commenters.map((c) => c.id), ...(row.decidedBy ? [row.decidedBy] : [])];
