@@ -214,6 +214,19 @@ describe("the audit page and the local mailbox", () => {
     expect(wrong).toContain("That is not a calendar date.");
   });
 
+  it("shows entries written under the old words (proposal.rebase, set.watched) under today's names, and filters them so", async () => {
+    await t.db.insert(auditLog).values([
+      { action: "proposal.rebase", actorId: ids.ines, actorEmail: "x", targetType: "proposal", targetId: "77" },
+      { action: "set.watched", actorId: ids.ines, actorEmail: "x" },
+    ]);
+    const page = (await (await admin.get("/admin/audit?action=proposal.carry_forward")).text()).replace(/<!-- -->/g, "");
+    expect(page).toContain("1 entry matches the filter");
+    expect(page).toContain('data-action="proposal.carry_forward"');
+    expect(page).toMatch(/<option value="proposal.carry_forward"( selected="")?>proposal.carry_forward<\/option>/);
+    expect(page).toContain('<option value="set.notices_on">set.notices_on</option>');
+    expect(page).not.toMatch(/rebase|watched/);
+  });
+
   it("lists and shows the mails sent, and only files from the sink", async () => {
     const list = await (await admin.get("/dev/mailbox")).text();
     expect(list).toContain("Inês Carvalho invited you to Bandledger");
