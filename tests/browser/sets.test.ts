@@ -90,6 +90,21 @@ describe("parameter sets in Chromium", () => {
     await page.close();
   });
 
+  it("lists /api/v1/account on the API page and marks its old address as answered for one release", async () => {
+    const appUrl = inject("appUrl");
+    await signInAs(browser, appUrl, leadId);
+    const page = await browser.newPage();
+    await page.goto(`${appUrl}/api-docs`);
+    await page.locator('[data-endpoint="GET /api/v1/account"]').waitFor();
+    const old = page.locator('[data-endpoint="GET /api/v1/whoami"]');
+    await old.getByText("old address, answered for one release").waitFor();
+    await old.getByText("Deprecated: use /api/v1/account.", { exact: false }).waitFor();
+    await expect(page.locator('[data-endpoint="GET /api/v1/account"]').getByText("old address").count()).resolves.toBe(0);
+    await page.getByText("npm run --silent bandledger -- download hemt-baseline 3 --out hemt-baseline-r3.json", { exact: false }).waitFor();
+    await old.screenshot({ path: artifactPath("api-docs-old-address.png") });
+    await page.close();
+  });
+
   it("shows a reviewer what changed between releases 2 and 3 of HEMT baseline", async () => {
     const appUrl = inject("appUrl");
     const page = await browser.newPage();
