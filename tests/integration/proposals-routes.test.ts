@@ -140,6 +140,8 @@ describe("a stale proposal on its page", () => {
     expect(own).toContain('<input type="hidden" name="intent" value="carry-forward"/>');
     expect(own).toContain(">Carry forward to the current value</button>");
     expect(own).toContain(">stale: carry forward</span>");
+    expect(own).toContain(">waiting for a decision</span>");
+    expect(own).not.toMatch(/waiting for review/);
     expect(own).not.toMatch(/rebas/i);
     expect(page).toContain("still reject it as it stands, with a reason, without asking for it to be carried forward first.");
     expect(page).toMatch(/<button type="submit" class="btn-primary" disabled="">Approve<\/button>/);
