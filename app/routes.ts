@@ -20,6 +20,7 @@ export default [
   ]),
   route("dev/mailbox", "routes/dev.mailbox.tsx"),
   route("dev/mailbox/:file", "routes/dev.mailbox.$file.tsx"),
+  route("api/v1/account", "routes/api.v1.account.ts"),
   route("api/v1/whoami", "routes/api.v1.whoami.ts"),
 
   // registry

@@ -1,4 +1,4 @@
-import { and, count, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
+import { and, count, desc, eq, gte, inArray, lt, sql, type SQL } from "drizzle-orm";
 import { clientAddress } from "./auth/client-address";
 import { db } from "./db/client";
 import { auditLog, users } from "./db/schema";
@@ -59,6 +59,27 @@ export function auditInBatch(actor: AuditActor, action: string, target: AuditTar
   });
 }
 
+/**
+ * Action strings written before our own words replaced borrowed ones. The log is append-only, so old rows keep
+ * them; the admin page shows them, and filters them, under the name written now.
+ */
+export const AUDIT_ACTION_LABELS: Readonly<Record<string, string>> = {
+  "proposal.rebase": "proposal.carry_forward",
+  "proposal.comment": "proposal.remark",
+  "set.watched": "set.notices_on",
+  "set.unwatched": "set.notices_off",
+};
+
+/** The name an action is shown and filtered under. */
+export function auditActionLabel(action: string): string {
+  return AUDIT_ACTION_LABELS[action] ?? action;
+}
+
+/** Every stored action string shown under this name: the name itself and the older ones it replaced. */
+function storedActionsOf(label: string): string[] {
+  return [label, ...Object.entries(AUDIT_ACTION_LABELS).filter(([, to]) => to === label).map(([from]) => from)];
+}
+
 export type AuditFilter = { action?: string; actorId?: number; from?: Date; to?: Date; page: number; pageSize: number };
 
 export type AuditRow = {
@@ -68,7 +89,7 @@ export type AuditRow = {
 
 export async function listAudit(filter: AuditFilter): Promise<{ rows: AuditRow[]; total: number; page: number; pageCount: number }> {
   const where: SQL[] = [];
-  if (filter.action) where.push(eq(auditLog.action, filter.action));
+  if (filter.action) where.push(inArray(auditLog.action, storedActionsOf(auditActionLabel(filter.action))));
   if (filter.actorId) where.push(eq(auditLog.actorId, filter.actorId));
   if (filter.from) where.push(gte(auditLog.at, filter.from));
   if (filter.to) where.push(lt(auditLog.at, filter.to));
@@ -88,12 +109,12 @@ export async function listAudit(filter: AuditFilter): Promise<{ rows: AuditRow[]
     .orderBy(desc(auditLog.at), desc(auditLog.id))
     .limit(filter.pageSize)
     .offset((page - 1) * filter.pageSize);
-  return { rows: rows.map((r) => ({ ...r, id: Number(r.id) })), total, page, pageCount };
+  return { rows: rows.map((r) => ({ ...r, id: Number(r.id), action: auditActionLabel(r.action) })), total, page, pageCount };
 }
 
 export async function auditActions(): Promise<string[]> {
   const rows = await db().selectDistinct({ action: auditLog.action }).from(auditLog).orderBy(auditLog.action);
-  return rows.map((r) => r.action);
+  return [...new Set(rows.map((r) => auditActionLabel(r.action)))].sort();
 }
 
 export async function auditActors(): Promise<{ id: number; name: string; email: string }[]> {

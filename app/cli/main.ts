@@ -4,11 +4,15 @@ import { calcCommand } from "./commands/calc";
 import { epmCommand } from "./commands/epm";
 import { evaluateCommand } from "./commands/evaluate";
 import { nfeCommand } from "./commands/nfe";
-import { pullCommand } from "./commands/pull";
+import { downloadCommand } from "./commands/download";
 import { verifyCommand } from "./commands/verify";
+import { RELEASE_REF_FORM } from "./release-ref";
 
-/** The subcommands of `bandledger`; add new ones (pull, verify, …) here. */
-export const commands: readonly Command[] = [nfeCommand, epmCommand, calcCommand, pullCommand, verifyCommand, evaluateCommand];
+/** The subcommands of `bandledger`; add new ones (download, verify, …) here. */
+export const commands: readonly Command[] = [nfeCommand, epmCommand, calcCommand, downloadCommand, verifyCommand, evaluateCommand];
+
+/** Names of earlier versions: answered with the new form and exit 2, never run under the old name. */
+export const RENAMED_COMMANDS: Readonly<Record<string, string>> = { pull: "download" };
 
 function usage(): string {
   const width = Math.max(...commands.map((c) => c.name.length));
@@ -26,6 +30,13 @@ export async function main(args: string[], io: Io): Promise<number> {
   if (name === "--help" || name === "-h" || name === "help") {
     io.stdout(`${usage()}\n`);
     return 0;
+  }
+  const renamed = name === undefined ? undefined : RENAMED_COMMANDS[name];
+  if (renamed) {
+    // The same request in today's words, a release written `set@N` as two arguments.
+    const today = rest.map((a) => a.replace(/^([a-z0-9]+(?:-[a-z0-9]+)*)@(\d{1,7})$/, "$1 $2")).join(" ");
+    io.stderr(`bandledger: "${name}" is now "${renamed}": bandledger ${renamed}${today ? ` ${today}` : ` ${RELEASE_REF_FORM} --out <file>`}\n`);
+    return EXIT_USAGE;
   }
   const command = commands.find((c) => c.name === name);
   if (!command) {

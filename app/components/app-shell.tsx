@@ -12,7 +12,7 @@ const NAV: NavItem[] = [
   { to: "/materials", label: "Materials", minRole: "reader" },
   { to: "/sources", label: "Sources", minRole: "reader" },
   { to: "/proposals", label: "Proposals", minRole: "contributor" },
-  { to: "/review", label: "Review", minRole: "lead" },
+  { to: "/review", label: "Decisions", minRole: "lead" },
   { to: "/sets", label: "Sets", minRole: "reader" },
   { to: "/checks/nfe", label: "NFE check", minRole: "reader" },
   { to: "/checks/epm", label: "Crystal check", minRole: "reader" },

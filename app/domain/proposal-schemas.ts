@@ -298,9 +298,9 @@ export function fieldErrorsOf(error: z.ZodError): ProposalFieldErrors {
   return errors;
 }
 
-/** A comment on a proposal. */
+/** A remark on a proposal. */
 export const commentSchema = z.object({
-  body: z.string().trim().min(1, "Write a comment first.").max(4000, "A comment has at most 4000 characters."),
+  body: z.string().trim().min(1, "Write a remark first.").max(4000, "A remark has at most 4000 characters."),
 });
 
 /** A lead's decision: a rejection always says why. */

@@ -5,13 +5,13 @@ import { requireUser } from "~/.server/permissions";
 
 export const meta: Route.MetaFunction = () => [{ title: "API · Bandledger" }];
 
-type Endpoint = { method: string; path: string; summary: string; description: string | null; parameters: { name: string; in: string; required: boolean; description: string | null }[]; hasBody: boolean; statuses: string[] };
+type Endpoint = { method: string; path: string; summary: string; description: string | null; deprecated: boolean; parameters: { name: string; in: string; required: boolean; description: string | null }[]; hasBody: boolean; statuses: string[] };
 
 const EXAMPLE_PARAMS: Record<string, string> = { slug: "hemt-baseline", number: "3", id: "1" };
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request);
-  const doc = openApiDocument() as unknown as { paths: Record<string, Record<string, { summary?: string; description?: string; parameters?: { name: string; in: string; required?: boolean; description?: string; schema?: { description?: string } }[]; requestBody?: unknown; responses?: Record<string, unknown> }>> };
+  const doc = openApiDocument() as unknown as { paths: Record<string, Record<string, { summary?: string; description?: string; deprecated?: boolean; parameters?: { name: string; in: string; required?: boolean; description?: string; schema?: { description?: string } }[]; requestBody?: unknown; responses?: Record<string, unknown> }>> };
   const endpoints: Endpoint[] = [];
   for (const [path, methods] of Object.entries(doc.paths)) {
     for (const [method, op] of Object.entries(methods)) {
@@ -20,6 +20,7 @@ export async function loader({ request }: Route.LoaderArgs) {
         path,
         summary: op.summary ?? "",
         description: op.description ?? null,
+        deprecated: Boolean(op.deprecated),
         parameters: (op.parameters ?? []).map((p) => ({ name: p.name, in: p.in, required: Boolean(p.required), description: p.description ?? p.schema?.description ?? null })),
         hasBody: Boolean(op.requestBody),
         statuses: Object.keys(op.responses ?? {}),
@@ -66,7 +67,7 @@ export default function ApiDocs({ loaderData }: Route.ComponentProps) {
         </ol>
         <p>A token reads what its owner may read, and nothing more; downloads by token are written to the audit log. Revoke it on the same page.</p>
         <pre className="overflow-x-auto rounded bg-paper p-3 font-mono text-xs">{`export BANDLEDGER_TOKEN=blt_…
-npm run --silent bandledger -- pull hemt-baseline@3 --out hemt-baseline-r3.json --url ${baseUrl}
+npm run --silent bandledger -- download hemt-baseline 3 --out hemt-baseline-r3.json --url ${baseUrl}
 npm run --silent bandledger -- verify hemt-baseline-r3.json`}</pre>
       </section>
       <section className="space-y-4" aria-labelledby="endpoints-title">
@@ -76,6 +77,7 @@ npm run --silent bandledger -- verify hemt-baseline-r3.json`}</pre>
             <h3 className="font-mono text-sm">
               <span className={`mr-2 rounded px-1.5 py-0.5 text-xs font-semibold ${e.method === "GET" ? "bg-teal-soft text-teal" : "bg-copper-soft text-copper"}`}>{e.method}</span>
               {e.path}
+              {e.deprecated ? <span className="ml-2 rounded border border-warn px-1.5 py-0.5 text-xs text-warn">old address, answered for one release</span> : null}
             </h3>
             <p className="text-sm">{e.summary}</p>
             {e.description ? <p className="text-sm text-muted">{e.description}</p> : null}

@@ -1,14 +1,9 @@
 import type { Route } from "./+types/api.v1.whoami";
+import { accountAnswer } from "~/.server/api/account";
+import { deprecatedAlias } from "~/.server/api/deprecation";
 import { readOnlyEndpoint } from "~/.server/api/respond";
-import { requireApiUser } from "~/.server/tokens";
 
-// Tells a script or the browser whom its credentials stand for.
-export async function loader({ request }: Route.LoaderArgs) {
-  const user = await requireApiUser(request);
-  return Response.json(
-    { user: { id: user.id, email: user.email, name: user.name, role: user.role, leadFamilyIds: user.leadFamilyIds } },
-    { headers: { "Cache-Control": "no-store" } },
-  );
-}
+// The old address of /api/v1/account, answered the same for one release with Deprecation and Link headers.
+export const loader = deprecatedAlias("/api/v1/account", ({ request }: Route.LoaderArgs) => accountAnswer(request));
 
-export const action = readOnlyEndpoint;
+export const action = deprecatedAlias("/api/v1/account", readOnlyEndpoint);

@@ -44,11 +44,11 @@ export default function EditDraft({ loaderData, actionData }: Route.ComponentPro
             {loaderData.kind === "new_record" ? "A new record" : loaderData.kind === "retirement" ? "Retire a record" : "A new value for a record"}
           </h1>
         </div>
-        <Link to={`/proposals/${proposalId}`} className="text-sm">Preview as reviewers see it</Link>
+        <Link to={`/proposals/${proposalId}`} className="text-sm">Preview as the leads see it</Link>
       </header>
       {loaderData.stale ? (
         <p role="alert" className="rounded-[var(--radius-card)] border border-warn px-3 py-2 text-sm text-warn">
-          The record changed since this draft was started. <Link to={`/proposals/${proposalId}`}>Rebase it</Link> on the current value before you submit.
+          The record changed since this draft was started. <Link to={`/proposals/${proposalId}`}>Carry it forward</Link> to the current value before you submit.
         </p>
       ) : null}
       <ProposalForm

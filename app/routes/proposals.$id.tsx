@@ -6,7 +6,7 @@ import { MAX_ATTACHMENT_BYTES, readLimitedFormData, StorageError } from "~/.serv
 import { attachFile } from "~/.server/workflow/attachments";
 import { decideProposal } from "~/.server/workflow/decide";
 import { isWorkflowError, statusOf } from "~/.server/workflow/errors";
-import { addComment, rebaseProposal, withdrawProposal } from "~/.server/workflow/proposals";
+import { addComment, carryForwardProposal, withdrawProposal } from "~/.server/workflow/proposals";
 import { familyOfProposal, loadProposalPage } from "~/.server/workflow/views";
 import { FieldError, FormError, invalidProps } from "~/components/field-error";
 import { ConsistencyChecks } from "~/components/proposals/consistency-checks";
@@ -68,21 +68,21 @@ export async function action({ request, params }: Route.ActionArgs) {
         message: done.state === "approved" ? `Approved: record ${done.recordId} now holds the new value (revision ${done.resultRevisionId}); the author has been told.` : "Rejected; the author has been told why.",
       });
     }
-    if (intent === "comment") {
+    if (intent === "remark") {
       const parsed = commentSchema.safeParse({ body: text("body") });
       if (!parsed.success) return fail(intent, 400, null, fieldErrorsOf(parsed.error), { body: text("body") });
       await addComment(user, id, parsed.data.body, request);
-      return redirectWithFlash(request, `/proposals/${id}#comments`, { kind: "ok", message: "Comment added; the others in the thread have been told." });
+      return redirectWithFlash(request, `/proposals/${id}#remarks`, { kind: "ok", message: "Remark added; the others in the thread have been told." });
     }
     if (intent === "withdraw") {
       await withdrawProposal(user, id, request);
       return redirectWithFlash(request, `/proposals/${id}`, { kind: "ok", message: "Withdrawn. The proposal stays in your list; nothing in the registry changed." });
     }
-    if (intent === "rebase") {
+    if (intent === "carry-forward") {
       const version = positiveId.safeParse(text("version"));
       if (!version.success) return fail(intent, 400, "Reload the page and try again.");
-      const done = await rebaseProposal(user, id, version.data, request);
-      return redirectWithFlash(request, `/proposals/${id}`, { kind: "ok", message: `Rebased on revision ${done.baseRevisionId}: check that your value still holds against it.` });
+      const done = await carryForwardProposal(user, id, version.data, request);
+      return redirectWithFlash(request, `/proposals/${id}`, { kind: "ok", message: `Carried forward onto revision ${done.baseRevisionId}: check that your value still holds against it.` });
     }
     if (intent === "attach") {
       const file = form.get("file");
@@ -142,14 +142,14 @@ export default function ProposalPage({ loaderData: p, actionData }: Route.Compon
           <p className="mt-1">
             It was based on <span className="figure font-mono">{p.stale.baseText}</span>; the record now holds{" "}
             <span className="figure font-mono" data-testid="stale-current">{p.stale.currentText}</span>
-            {p.stale.currentRevisionId ? ` (revision ${p.stale.currentRevisionId})` : ""}. Nothing is overwritten silently: it cannot be approved until its author rebases it. A lead may still
-            reject it as it stands, with a reason, without asking for a rebase first.
+            {p.stale.currentRevisionId ? ` (revision ${p.stale.currentRevisionId})` : ""}. Nothing is overwritten silently: it cannot be approved until its author carries it forward to the current value. A lead may
+            still reject it as it stands, with a reason, without asking for it to be carried forward first.
           </p>
-          {p.can.rebase ? (
+          {p.can.carryForward ? (
             <Form method="post" className="mt-3">
-              <input type="hidden" name="intent" value="rebase" />
+              <input type="hidden" name="intent" value="carry-forward" />
               <input type="hidden" name="version" value={p.version} />
-              <button type="submit" className="btn-primary" disabled={busy}>Rebase on the current value</button>
+              <button type="submit" className="btn-primary" disabled={busy}>Carry forward to the current value</button>
             </Form>
           ) : null}
         </section>
@@ -185,7 +185,7 @@ export default function ProposalPage({ loaderData: p, actionData }: Route.Compon
                 <input type="hidden" name="version" value={p.version} />
                 <p className="text-sm text-muted">Approving makes the proposed value the record's current one; the old revision stays in its history.</p>
                 <button type="submit" className="btn-primary" disabled={busy || !p.can.approve}>Approve</button>
-                {!p.can.approve ? <p className="text-sm text-warn" data-testid="approve-blocked">Stale: approving waits until its author rebases it. Rejecting is open now.</p> : null}
+                {!p.can.approve ? <p className="text-sm text-warn" data-testid="approve-blocked">Stale: approving waits until its author carries it forward. Rejecting is open now.</p> : null}
               </Form>
               <Form method="post" className="space-y-2" noValidate>
                 <input type="hidden" name="intent" value="reject" />
@@ -236,9 +236,9 @@ export default function ProposalPage({ loaderData: p, actionData }: Route.Compon
         ) : null}
       </section>
 
-      <section id="comments" className="card p-4" aria-labelledby="comments-title">
-        <h2 id="comments-title" className="font-semibold">Comments</h2>
-        {p.comments.length === 0 ? <p className="mt-2 text-sm text-muted">No comments yet.</p> : null}
+      <section id="remarks" className="card p-4" aria-labelledby="remarks-title">
+        <h2 id="remarks-title" className="font-semibold">Remarks</h2>
+        {p.comments.length === 0 ? <p className="mt-2 text-sm text-muted">No remarks yet.</p> : null}
         <ol className="mt-3 space-y-3">
           {p.comments.map((c) => (
             <li key={c.id} className="border-l-2 border-rule pl-3">
@@ -249,11 +249,11 @@ export default function ProposalPage({ loaderData: p, actionData }: Route.Compon
         </ol>
         {p.can.comment ? (
           <Form method="post" className="mt-4 space-y-2" noValidate>
-            <input type="hidden" name="intent" value="comment" />
-            <label htmlFor="body" className="label">Add a comment</label>
-            <textarea id="body" name="body" rows={3} key={p.comments.length} defaultValue={actionData?.intent === "comment" ? actionData.values.body : ""} className="field" {...invalidProps("body-error", errors.body)} />
+            <input type="hidden" name="intent" value="remark" />
+            <label htmlFor="body" className="label">Add a remark</label>
+            <textarea id="body" name="body" rows={3} key={p.comments.length} defaultValue={actionData?.intent === "remark" ? actionData.values.body : ""} className="field" {...invalidProps("body-error", errors.body)} />
             <FieldError id="body-error" message={errors.body} />
-            <button type="submit" className="btn" disabled={busy}>Comment</button>
+            <button type="submit" className="btn" disabled={busy}>Add remark</button>
           </Form>
         ) : null}
       </section>

@@ -27,7 +27,7 @@ export default function Proposals({ loaderData }: Route.ComponentProps) {
         <div className="flex flex-wrap gap-2">
           <Link to="/proposals/new" className="btn-primary no-underline">New record</Link>
           <Link to="/uploads" className="btn no-underline">Upload a CSV of proposals</Link>
-          {loaderData.isLead ? <Link to="/review" className="btn no-underline">Review queue</Link> : null}
+          {loaderData.isLead ? <Link to="/review" className="btn no-underline">Decisions to make</Link> : null}
         </div>
       </header>
       <Form method="get" action="/proposals/new" className="card flex flex-wrap items-end gap-3 p-4" aria-label="Change an existing record">

@@ -4,7 +4,7 @@ import { requireRole } from "~/.server/permissions";
 import { listReviewQueue } from "~/.server/workflow/views";
 import { QUEUE_SORTS, ReviewQueueTable, type QueueSort } from "~/components/proposals/review-queue-table";
 
-export const meta: Route.MetaFunction = () => [{ title: "Review queue · Bandledger" }];
+export const meta: Route.MetaFunction = () => [{ title: "Decisions to make · Bandledger" }];
 
 const viewSchema = z.object({
   sort: z.enum(QUEUE_SORTS).catch("age"),
@@ -22,7 +22,7 @@ export default function Review({ loaderData }: Route.ComponentProps) {
   return (
     <div className="space-y-4">
       <header>
-        <p className="label">Review</p>
+        <p className="label">Decisions</p>
         <h1 className="mt-1 text-2xl font-semibold tracking-tight">Proposals waiting for a decision</h1>
         <p className="mt-1 max-w-2xl text-sm text-muted">
           {loaderData.admin ? "Every family's submitted proposals." : "The submitted proposals of the families you lead."} Open one to compare it with the current value, approve it, or reject it with a reason.
@@ -30,7 +30,7 @@ export default function Review({ loaderData }: Route.ComponentProps) {
       </header>
       {rows.length === 0 ? (
         <div className="card p-8 text-center" data-testid="queue-empty">
-          <p className="font-medium">Nothing waits for your review.</p>
+          <p className="font-medium">Nothing waits for your decision.</p>
           <p className="mt-1 text-sm text-muted">When someone submits a proposal for a family you lead, it appears here and you get a notice.</p>
         </div>
       ) : (

@@ -7,8 +7,8 @@ import { registryOptions } from "~/.server/registry/listing";
 import { redirectWithFlash } from "~/.server/session";
 import { isSetError } from "~/.server/sets/errors";
 import { orSetErrorPage } from "~/.server/sets/http";
-import { isWatching, loadSetView } from "~/.server/sets/queries";
-import { addMember, addMembersByFilter, candidateRows, freezeSet, removeMember, setWatch } from "~/.server/sets/service";
+import { getsReleaseNotices, loadSetView } from "~/.server/sets/queries";
+import { addMember, addMembersByFilter, candidateRows, freezeSet, removeMember, setReleaseNotices } from "~/.server/sets/service";
 import { readForm } from "~/.server/storage";
 import { FieldError } from "~/components/field-error";
 import { conditionText, SinceMark, SourceText, ValueText } from "~/components/release-values";
@@ -42,7 +42,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       filter,
       options,
       candidates,
-      watching: await isWatching(view.set.id, user.id),
+      getsNotices: await getsReleaseNotices(view.set.id, user.id),
       canEdit: hasRole(user, "contributor"),
       canFreeze: hasRole(user, "lead"),
     };
@@ -82,10 +82,10 @@ export async function action({ request, params }: Route.ActionArgs) {
         const written = await freezeSet(user, params.slug, { expectedVersion: expectedVersion.data }, request);
         return redirectWithFlash(request, `${here}/releases/${written.number}`, { kind: "ok", message: `Release ${written.number} frozen: ${written.itemCount} values, SHA-256 ${written.sha256.slice(0, 12)}…` });
       }
-      case "watch":
-      case "unwatch": {
-        await setWatch(user, params.slug, intent === "watch", request);
-        return redirectWithFlash(request, here, { kind: "ok", message: intent === "watch" ? "You will get an e-mail when this set is frozen." : "You no longer watch this set." });
+      case "notices-on":
+      case "notices-off": {
+        await setReleaseNotices(user, params.slug, intent === "notices-on", request);
+        return redirectWithFlash(request, here, { kind: "ok", message: intent === "notices-on" ? "You will get a release notice each time this set is frozen." : "You no longer get release notices for this set." });
       }
       default:
         return fail(400, "Unknown request.");
@@ -97,7 +97,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function SetDetail({ loaderData, actionData }: Route.ComponentProps) {
-  const { view, filter, options, candidates, watching, canEdit, canFreeze } = loaderData;
+  const { view, filter, options, candidates, getsNotices, canEdit, canFreeze } = loaderData;
   const { set, members, releases, lastReleaseNumber, droppedSinceLastRelease } = view;
   const error = actionData?.error;
   const moved = members.filter((m) => m.sinceLastRelease && m.sinceLastRelease !== "unchanged").length + droppedSinceLastRelease.length;
@@ -116,8 +116,8 @@ export default function SetDetail({ loaderData, actionData }: Route.ComponentPro
           </p>
         </div>
         <Form method="post">
-          <input type="hidden" name="intent" value={watching ? "unwatch" : "watch"} />
-          <button type="submit" className="btn">{watching ? "Stop watching" : "Watch: e-mail me on each freeze"}</button>
+          <input type="hidden" name="intent" value={getsNotices ? "notices-off" : "notices-on"} />
+          <button type="submit" className="btn">{getsNotices ? "Stop release notices" : "Notify me of new releases"}</button>
         </Form>
       </header>
 

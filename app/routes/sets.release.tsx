@@ -54,9 +54,9 @@ export default function Release({ loaderData }: Route.ComponentProps) {
         ))}
       </dl>
       <p className="text-sm text-muted">
-        Pull and verify it from a pipeline: <code className="font-mono">npm run --silent bandledger -- pull {set.slug}@{release.number} --out {set.slug}-r{release.number}.json</code>
+        Download and verify it from a pipeline: <code className="font-mono">npm run --silent bandledger -- download {set.slug} {release.number} --out {set.slug}-r{release.number}.json</code>
       </p>
-      <ReleaseEvaluation page={evaluation} apiPath={`/api/v1/sets/${set.slug}/releases/${release.number}/evaluate`} refText={`${set.slug}@${release.number}`} />
+      <ReleaseEvaluation page={evaluation} apiPath={`/api/v1/sets/${set.slug}/releases/${release.number}/evaluate`} refText={`${set.slug} ${release.number}`} />
       <div className="card overflow-x-auto">
         <table className="w-full text-sm">
           <thead className="border-b border-rule text-left text-xs text-muted uppercase">

@@ -20,7 +20,7 @@ export default function Sets({ loaderData }: Route.ComponentProps) {
           <h1 className="mt-1 text-2xl font-semibold tracking-tight">Named selections, frozen into releases</h1>
           <p className="mt-1 max-w-2xl text-sm text-muted">
             A draft set follows the current values of its records. Freezing pins the exact revisions into a numbered release with a SHA-256 hash that never changes;
-            pipelines download releases by API or with <code className="font-mono">bandledger pull</code>.
+            pipelines download releases by API or with <code className="font-mono">bandledger download</code>.
           </p>
         </div>
         {canCreate ? <a href="/sets/new" className="btn-primary no-underline">New set</a> : null}

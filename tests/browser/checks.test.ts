@@ -188,7 +188,7 @@ describe("check reports on the record page, the proposal form and the review pag
     await page.getByRole("textbox", { name: "DOI" }).fill("10.1063/1.1368156");
     await page.getByLabel("Title").fill("Band parameters for III–V compound semiconductors and their alloys");
     await page.getByLabel("Where in the source").fill("GaAs parameter table; model potential of the team");
-    await page.getByRole("button", { name: "Submit for review" }).click();
+    await page.getByRole("button", { name: "Submit for a decision" }).click();
     await page.waitForURL(/\/proposals\/\d+$/);
     const proposalUrl = page.url();
     expect(errors).toEqual([]);

@@ -47,6 +47,9 @@ describe("a release evaluated in Chromium", () => {
     await expect(gamma.textContent()).resolves.not.toMatch(/± 0(\.0+)?(?![.\d])/);
     await expect(section.locator('[data-derived="mismatch"]').count()).resolves.toBe(1);
     await section.getByText(/not in HEMT baseline release 3|no 0 K Varshni fit at X in HEMT baseline release 3/).first().waitFor();
+    // The same evaluation from the command line, the release named as two arguments.
+    await section.getByText("npm run --silent bandledger -- evaluate hemt-baseline 3 --temperature 77 --material AlGaAs --x 0.3 --substrate GaAs", { exact: false }).waitFor();
+    await expect(section.innerText()).resolves.not.toContain("hemt-baseline@3");
     await page.screenshot({ path: artifactPath("release-evaluate.png"), fullPage: true });
 
     const sha = (await page.getByTestId("release-sha256").textContent())!.trim();

@@ -83,7 +83,7 @@ beforeAll(async () => {
     value: "6.06104", unit: "Å", method: "calculated", "source.kind": "bibtex", "source.bibtex": BIBTEX, locator: LOCATOR, notes: NOTES,
   });
   ids.proposal = idFrom(submitted, /^\/proposals\/(\d+)$/);
-  expect((await tomas.post(`/proposals/${ids.proposal}`, { intent: "comment", body: COMMENT })).status).toBe(302);
+  expect((await tomas.post(`/proposals/${ids.proposal}`, { intent: "remark", body: COMMENT })).status).toBe(302);
   const [p] = await d.select().from(proposals).where(eq(proposals.id, ids.proposal));
   expect((await ravi.post(`/proposals/${ids.proposal}`, { intent: "approve", version: String(p.version), reason: APPROVAL })).status).toBe(302);
   const [approved] = await d.select().from(proposals).where(eq(proposals.id, ids.proposal));
@@ -108,7 +108,7 @@ beforeAll(async () => {
   const created = await tomas.post("/sets/new", { name: SET_NAME, slug: "inert-html-check", purpose: SET_PURPOSE, description: SET_DESCRIPTION });
   expect(created.headers.get("location")).toBe("/sets/inert-html-check");
   expect((await tomas.post("/sets/inert-html-check", { intent: "add-record", recordId: String(ids.record) })).status).toBe(302);
-  expect((await tomas.post("/sets/inert-html-check", { intent: "watch" })).status).toBe(302);
+  expect((await tomas.post("/sets/inert-html-check", { intent: "notices-on" })).status).toBe(302);
   const [set] = await d.select().from(parameterSets).where(eq(parameterSets.slug, "inert-html-check"));
   const frozen = await ravi.post("/sets/inert-html-check", { intent: "freeze", confirm: "yes", expectedVersion: String(set.version) });
   expect(frozen.headers.get("location")).toBe("/sets/inert-html-check/releases/1");

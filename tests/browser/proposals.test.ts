@@ -68,7 +68,7 @@ describe("a change from proposal to the registry, in Chromium", () => {
     await expectVisible(page.getByText("Kept as 3.00304 eV, 6 significant digits."));
 
     // A refused submission keeps what was typed and says which field is wrong.
-    await page.getByRole("button", { name: "Submit for review" }).click();
+    await page.getByRole("button", { name: "Submit for a decision" }).click();
     const locatorError = page.locator("#f-locator-error");
     await locatorError.waitFor();
     expect(await locatorError.textContent()).toMatch(/page, table or figure/);
@@ -81,13 +81,13 @@ describe("a change from proposal to the registry, in Chromium", () => {
 
     await page.getByLabel("Where in the source").fill("AlAs parameter table: Eg(0) = 3.099 eV, α = 0.885 meV/K, β = 530 K");
     const before = Date.now();
-    await page.getByRole("button", { name: "Submit for review" }).click();
+    await page.getByRole("button", { name: "Submit for a decision" }).click();
     await page.waitForURL(new RegExp(`/proposals/${draft.id}$`));
-    await expectVisible(page.getByText("Submitted for review"));
+    await expectVisible(page.getByText("Submitted for a decision"));
     await shoot(page, "proposal-submitted.png");
 
     const mail = await readLastMail(inject("mailboxDir"), "ravi.menon@kestrel-devices.test", { after: before });
-    expect(mail.subject).toBe("Review requested: AlAs · Band gap (Γ, 300 K)");
+    expect(mail.subject).toBe("AlAs · Band gap (Γ, 300 K): a proposal waits for your decision");
     expect(mail.text).toContain("3.003 eV → 3.00304 eV");
     const link = /https?:\/\/\S+\/proposals\/\d+/.exec(mail.text)?.[0];
     expect(link).toBe(`${appUrl}/proposals/${draft.id}`);
@@ -108,7 +108,7 @@ describe("a change from proposal to the registry, in Chromium", () => {
 
     expect(await d.select({ id: proposals.id }).from(proposals).where(and(eq(proposals.authorId, ids.tomas), eq(proposals.recordId, recordId)))).toHaveLength(1);
     const back = await readLastMail(inject("mailboxDir"), "tomas.okafor@kestrel-devices.test", { after: decided });
-    expect(back.subject).toBe("Approved: AlAs · Band gap (Γ, 300 K)");
+    expect(back.subject).toBe("AlAs · Band gap (Γ, 300 K): Ravi Menon approved your proposal");
 
     await review.goto(`${appUrl}/records/${recordId}`);
     const body = await review.locator("main").innerText();
@@ -123,6 +123,52 @@ describe("a change from proposal to the registry, in Chromium", () => {
     await page.goto(`${appUrl}/proposals`);
     expect(await page.locator("main").innerText()).toContain("AlAs · Band gap (Γ, 300 K)");
     await shoot(page, "proposals-list.png");
+  });
+
+  it("is carried forward when the record moved on: the badge, the button and the message say so in our words", async () => {
+    // [V01] GaAs a(300 K) = 5.65325 Å; two restatements of it compete for the same record.
+    const [gaas] = await d.select({ id: materials.id }).from(materials).where(eq(materials.key, "GaAs"));
+    const [rec] = await d.select({ id: records.id }).from(records).where(and(eq(records.materialId, gaas.id), eq(records.conditionKey, "T=300|V=|x=")));
+    const propose = async (value: string) => {
+      const r = await contributor.request.post(`${appUrl}/proposals/new?record=${rec.id}&kind=revision`, {
+        form: {
+          intent: "submit", kind: "revision", recordId: String(rec.id), material: "GaAs", quantity: "lattice_a", value, unit: "Å", method: "compilation",
+          "source.kind": "doi", "source.doi": "10.1063/1.1368156", "source.title": "Band parameters for III–V compound semiconductors and their alloys",
+          locator: "GaAs parameter table", notes: "Restated from [V01].",
+        },
+        maxRedirects: 0,
+      });
+      expect(r.status()).toBe(302);
+      return Number(/\/proposals\/(\d+)$/.exec(r.headers().location ?? "")?.[1]);
+    };
+    const first = await propose("5.653250");
+    const second = await propose("5.6532500");
+    const [{ version }] = await d.select({ version: proposals.version }).from(proposals).where(eq(proposals.id, first));
+    const lead2 = await launchBrowser();
+    await signInAs(lead2, appUrl, await userId("hanna.lindqvist@kestrel-devices.test"));
+    expect((await lead2.request.post(`${appUrl}/proposals/${first}`, { form: { intent: "approve", version: String(version) }, maxRedirects: 0 })).status()).toBe(302);
+    await lead2.close();
+
+    const page = await contributor.newPage();
+    await page.goto(`${appUrl}/proposals/${second}`);
+    await expectVisible(page.getByText("stale: carry forward", { exact: true }));
+    await page.getByRole("button", { name: "Carry forward to the current value" }).click();
+    await page.getByText(/^Carried forward onto revision \d+: check that your value still holds against it\.$/).waitFor();
+    await shoot(page, "proposal-carried-forward.png");
+    expect(await page.locator("main").innerText()).not.toMatch(/rebas/i);
+    await page.getByRole("button", { name: "Withdraw" }).click();
+    await page.close();
+  });
+
+  it("names the lead's page Decisions in the menu, and nothing on it asks for a review", async () => {
+    const page = await lead.newPage();
+    await page.goto(`${appUrl}/proposals`);
+    await page.getByRole("navigation", { name: "Primary", exact: true }).getByRole("link", { name: "Decisions", exact: true }).click();
+    await page.waitForURL(/\/review$/);
+    await page.getByRole("heading", { name: "Proposals waiting for a decision" }).waitFor();
+    expect(await page.title()).toBe("Decisions to make · Bandledger");
+    expect(await page.locator("main").innerText()).not.toMatch(/review queue|for review|your review|reviewer/i);
+    await page.close();
   });
 
   it("keeps a form posted after the session ended, and puts it back after sign-in", async () => {

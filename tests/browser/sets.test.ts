@@ -73,6 +73,38 @@ describe("parameter sets in Chromium", () => {
     await page.close();
   });
 
+  it("turns release notices on and off from the set page, in our words", async () => {
+    const appUrl = inject("appUrl");
+    await signInAs(browser, appUrl, leadId);
+    const page = await browser.newPage();
+    await page.goto(`${appUrl}/sets/hemt-baseline`);
+    await page.getByRole("button", { name: "Notify me of new releases" }).click();
+    await page.getByText("You will get a release notice each time this set is frozen.").waitFor();
+    await page.getByRole("button", { name: "Stop release notices" }).click();
+    await page.getByText("You no longer get release notices for this set.").waitFor();
+    await page.getByRole("button", { name: "Notify me of new releases" }).waitFor();
+    expect(await page.locator("main").innerText()).not.toMatch(/watch|\bpull\b/i);
+    await page.goto(`${appUrl}/sets/hemt-baseline/releases/3`);
+    await page.getByText("npm run --silent bandledger -- download hemt-baseline 3 --out hemt-baseline-r3.json").waitFor();
+    expect(await page.locator("main").innerText()).not.toMatch(/hemt-baseline@3|\bpull\b/);
+    await page.close();
+  });
+
+  it("lists /api/v1/account on the API page and marks its old address as answered for one release", async () => {
+    const appUrl = inject("appUrl");
+    await signInAs(browser, appUrl, leadId);
+    const page = await browser.newPage();
+    await page.goto(`${appUrl}/api-docs`);
+    await page.locator('[data-endpoint="GET /api/v1/account"]').waitFor();
+    const old = page.locator('[data-endpoint="GET /api/v1/whoami"]');
+    await old.getByText("old address, answered for one release").waitFor();
+    await old.getByText("Deprecated: use /api/v1/account.", { exact: false }).waitFor();
+    await expect(page.locator('[data-endpoint="GET /api/v1/account"]').getByText("old address").count()).resolves.toBe(0);
+    await page.getByText("npm run --silent bandledger -- download hemt-baseline 3 --out hemt-baseline-r3.json", { exact: false }).waitFor();
+    await old.screenshot({ path: artifactPath("api-docs-old-address.png") });
+    await page.close();
+  });
+
   it("shows a reviewer what changed between releases 2 and 3 of HEMT baseline", async () => {
     const appUrl = inject("appUrl");
     const page = await browser.newPage();

@@ -105,8 +105,8 @@ describe("signing in in Chromium", () => {
     await page.getByRole("cell", { name: "k·p runs on cluster A", exact: true }).waitFor();
     await expect(page.getByLabel("Token name").inputValue()).resolves.toBe("");
     await page.screenshot({ path: artifactPath("account-token.png"), fullPage: true });
-    const whoami = await fetch(`${appUrl}/api/v1/whoami`, { headers: { authorization: `Bearer ${token}` } });
-    expect((await whoami.json()).user.email).toBe("mei.tanaka@kestrel-devices.test");
+    const account = await fetch(`${appUrl}/api/v1/account`, { headers: { authorization: `Bearer ${token}` } });
+    expect((await account.json()).user.email).toBe("mei.tanaka@kestrel-devices.test");
     await page.reload();
     await expect(page.content()).resolves.not.toContain(token);
     await page.close();

@@ -90,3 +90,28 @@ describe("listAudit", () => {
     expect(await audit.auditActions()).toEqual(expect.arrayContaining(["auth.sign_in", "lead.assigned", "mail.failed", "user.invited"]));
   });
 });
+
+describe("actions written under borrowed words before our own", () => {
+  it("shows and filters rows written as proposal.rebase, proposal.comment and set.watched/unwatched under today's names", async () => {
+    const day = (d: number) => new Date(Date.UTC(2024, 5, d, 12));
+    await t.db.insert(auditLog).values([
+      { at: day(1), action: "proposal.rebase", actorId: 300, targetType: "proposal", targetId: "9" },
+      { at: day(2), action: "proposal.carry_forward", actorId: 300, targetType: "proposal", targetId: "9" },
+      { at: day(3), action: "set.watched", actorId: 300 },
+      { at: day(4), action: "set.unwatched", actorId: 300 },
+      { at: day(5), action: "proposal.comment", actorId: 300 },
+    ]);
+    const june = { actorId: 300, from: day(1), to: day(30), page: 1, pageSize: 50 };
+    const all = await audit.listAudit(june);
+    expect(all.rows.map((r) => r.action)).toEqual(["proposal.remark", "set.notices_off", "set.notices_on", "proposal.carry_forward", "proposal.carry_forward"]);
+    // Filtering by today's name finds the old rows too; the old name is read as the new one.
+    expect((await audit.listAudit({ ...june, action: "proposal.carry_forward" })).total).toBe(2);
+    expect((await audit.listAudit({ ...june, action: "proposal.rebase" })).total).toBe(2);
+    expect((await audit.listAudit({ ...june, action: "set.notices_on" })).rows.map((r) => r.at.toISOString().slice(0, 10))).toEqual(["2024-06-03"]);
+    const actions = await audit.auditActions();
+    expect(actions).toEqual(expect.arrayContaining(["proposal.carry_forward", "proposal.remark", "set.notices_on", "set.notices_off"]));
+    for (const old of ["proposal.rebase", "proposal.comment", "set.watched", "set.unwatched"]) expect(actions).not.toContain(old);
+    // The log itself is left as written.
+    expect((await t.db.select().from(auditLog).where(eq(auditLog.action, "proposal.rebase"))).length).toBe(1);
+  });
+});

@@ -114,8 +114,8 @@ describe("roles and deactivation", () => {
     // An assignment left behind by hand (or by an older version) gives a contributor no lead's rights.
     await t.db.insert(familyLeads).values({ userId: id, familyId: families[0].id });
     const lale = await HttpClient.signedIn(app.url, id);
-    const whoami = (await (await lale.get("/api/v1/whoami")).json()) as { user: { role: string; leadFamilyIds: number[] } };
-    expect(whoami.user).toMatchObject({ role: "contributor", leadFamilyIds: [] });
+    const account = (await (await lale.get("/api/v1/account")).json()) as { user: { role: string; leadFamilyIds: number[] } };
+    expect(account.user).toMatchObject({ role: "contributor", leadFamilyIds: [] });
     expect((await lale.get("/review")).status).toBe(403);
     await t.db.delete(familyLeads).where(eq(familyLeads.userId, id));
   });
@@ -190,7 +190,7 @@ describe("material families and lead assignments", () => {
     // Exactly the families family_leads holds for her, in id order: not another person's, not a constant.
     const held = (await t.db.select({ f: familyLeads.familyId }).from(familyLeads).where(eq(familyLeads.userId, ids.hanna))).map((r) => r.f).sort((a, b) => a - b);
     expect(held.length).toBeGreaterThan(1);
-    expect((await (await hanna.get("/api/v1/whoami")).json()).user.leadFamilyIds).toEqual(held);
+    expect((await (await hanna.get("/api/v1/account")).json()).user.leadFamilyIds).toEqual(held);
 
     expect((await admin.post("/admin/leads", { intent: "unassign", userId: String(ids.hanna), familyId: String(antimonides.id) })).status).toBe(302);
     expect(await t.db.select().from(familyLeads).where(and(eq(familyLeads.userId, ids.hanna), eq(familyLeads.familyId, antimonides.id)))).toEqual([]);
@@ -214,6 +214,19 @@ describe("the audit page and the local mailbox", () => {
     expect(future).toContain("No entries match the filter");
     const wrong = await (await admin.get("/admin/audit?from=2025-13-45&to=2025-01-01")).text();
     expect(wrong).toContain("That is not a calendar date.");
+  });
+
+  it("shows entries written under the old words (proposal.rebase, set.watched) under today's names, and filters them so", async () => {
+    await t.db.insert(auditLog).values([
+      { action: "proposal.rebase", actorId: ids.ines, actorEmail: "x", targetType: "proposal", targetId: "77" },
+      { action: "set.watched", actorId: ids.ines, actorEmail: "x" },
+    ]);
+    const page = (await (await admin.get("/admin/audit?action=proposal.carry_forward")).text()).replace(/<!-- -->/g, "");
+    expect(page).toContain("1 entry matches the filter");
+    expect(page).toContain('data-action="proposal.carry_forward"');
+    expect(page).toMatch(/<option value="proposal.carry_forward"( selected="")?>proposal.carry_forward<\/option>/);
+    expect(page).toContain('<option value="set.notices_on">set.notices_on</option>');
+    expect(page).not.toMatch(/rebase|watched/);
   });
 
   it("lists and shows the mails sent, and only files from the sink", async () => {

@@ -38,8 +38,8 @@ async function createToken(c: HttpClient, name: string): Promise<string> {
   return token;
 }
 
-const whoami = (token?: string, headers: Record<string, string> = {}) =>
-  fetch(`${app.url}/api/v1/whoami`, { headers: { ...(token ? { authorization: `Bearer ${token}` } : {}), ...headers } });
+const account = (token?: string, headers: Record<string, string> = {}) =>
+  fetch(`${app.url}/api/v1/account`, { headers: { ...(token ? { authorization: `Bearer ${token}` } : {}), ...headers } });
 
 describe("personal API tokens", () => {
   it("are shown once, stored only as a SHA-256 hash, and identify their owner to the API", async () => {
@@ -55,7 +55,7 @@ describe("personal API tokens", () => {
     expect(Object.values(row).some((v) => typeof v === "string" && v.includes(token.slice(12)))).toBe(false);
     expect(row.lastUsedAt).toBeNull();
 
-    const r = await whoami(token);
+    const r = await account(token);
     expect(r.status).toBe(200);
     expect(await r.json()).toMatchObject({ user: { id: ids.priya, email: "priya.raman@kestrel-devices.test", role: "reader" } });
     const [used] = await t.db.select().from(apiTokens).where(eq(apiTokens.id, row.id));
@@ -66,7 +66,7 @@ describe("personal API tokens", () => {
   });
 
   it("answer 401 with our JSON error when the token is missing, malformed or unknown", async () => {
-    for (const r of [await whoami(), await whoami(undefined, { authorization: "Basic abc" }), await whoami("blt_short"), await whoami(`blt_${randomBytes(32).toString("base64url")}`)]) {
+    for (const r of [await account(), await account(undefined, { authorization: "Basic abc" }), await account("blt_short"), await account(`blt_${randomBytes(32).toString("base64url")}`)]) {
       expect(r.status).toBe(401);
       expect(r.headers.get("www-authenticate")).toMatch(/^Bearer/);
       const body = await r.json();
@@ -82,20 +82,20 @@ describe("personal API tokens", () => {
     const mei = await HttpClient.signedIn(app.url, ids.mei);
     const foreign = await mei.post("/account", { intent: "revoke-token", tokenId: String(row.id) });
     expect(foreign.status).toBe(400);
-    expect((await whoami(token)).status).toBe(200);
+    expect((await account(token)).status).toBe(200);
 
     const revoked = await tomas.post("/account", { intent: "revoke-token", tokenId: String(row.id) });
     expect(revoked.status).toBe(302);
-    expect((await whoami(token)).status).toBe(401);
+    expect((await account(token)).status).toBe(401);
     expect(await t.db.select().from(auditLog).where(and(eq(auditLog.action, "token.revoked"), eq(auditLog.targetId, String(row.id))))).toHaveLength(1);
   });
 
   it("stop working when their owner is deactivated", async () => {
     const hanna = await HttpClient.signedIn(app.url, ids.hanna);
     const token = await createToken(hanna, "nitride runs");
-    expect((await whoami(token)).status).toBe(200);
+    expect((await account(token)).status).toBe(200);
     await t.db.update(users).set({ active: false }).where(eq(users.id, ids.hanna));
-    expect((await whoami(token)).status).toBe(401);
+    expect((await account(token)).status).toBe(401);
     await t.db.update(users).set({ active: true }).where(eq(users.id, ids.hanna));
   });
 
@@ -109,7 +109,7 @@ describe("personal API tokens", () => {
 
   it("are not needed by the signed-in browser: the API also accepts the session", async () => {
     const ravi = await HttpClient.signedIn(app.url, ids.ravi);
-    const r = await ravi.get("/api/v1/whoami");
+    const r = await ravi.get("/api/v1/account");
     expect(r.status).toBe(200);
     expect(await r.json()).toMatchObject({ user: { role: "lead", email: "ravi.menon@kestrel-devices.test" } });
   });

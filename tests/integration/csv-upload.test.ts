@@ -128,9 +128,9 @@ describe("a good CSV", () => {
     expect(audit).toMatchObject({ actorId: tomas.id, targetId: String(result.batchId), detail: expect.objectContaining({ sha256: batch.sha256, rows: 3 }) });
     const batchNotices = await t.db.select().from(notices).where(eq(notices.kind, "proposal.batch"));
     expect(batchNotices.map((n) => n.subject).sort()).toEqual([
-      "Review requested: 1 proposal for Antimonides from good-bom-semicolon.csv",
-      "Review requested: 2 proposals for Arsenides from good-bom-semicolon.csv",
-      "Review requested: 2 proposals for Arsenides from good-bom-semicolon.csv",
+      "Antimonides: 1 proposal waits for your decision (from good-bom-semicolon.csv)",
+      "Arsenides: 2 proposals wait for your decision (from good-bom-semicolon.csv)",
+      "Arsenides: 2 proposals wait for your decision (from good-bom-semicolon.csv)",
     ]);
   });
 

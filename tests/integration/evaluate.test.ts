@@ -180,7 +180,7 @@ describe("GET /api/v1/sets/{slug}/releases/{n}/evaluate over the demo release", 
 });
 
 describe("bandledger evaluate", () => {
-  const args = ["hemt-baseline@3", "--temperature", "77", "--material", "AlGaAs", "--x", "0.3", "--substrate", "GaAs"];
+  const args = ["hemt-baseline", "3", "--temperature", "77", "--material", "AlGaAs", "--x", "0.3", "--substrate", "GaAs"];
 
   it("writes the same bytes on every run and after a server restart, the same bytes the API serves, with the release hash at the top", async () => {
     const first = path.join(dir, "first.json");
@@ -227,20 +227,20 @@ describe("bandledger evaluate", () => {
   it("exits 2 with one line for a missing or wrong argument, also one the release refuses", async () => {
     const out = path.join(dir, "never.json");
     const runs = await Promise.all([
-      ["hemt-baseline@3", "--out", out],
+      ["hemt-baseline", "3", "--out", out],
       ["hemt-baseline", "--temperature", "77", "--out", out],
-      ["hemt-baseline@3", "--temperature", "-1", "--out", out],
-      ["hemt-baseline@3", "--temperature", "77", "--x", "2", "--out", out],
-      ["hemt-baseline@3", "--temperature", "77", "--out", out, "--format", "xml"],
-      ["hemt-baseline@3", "--temperature", "77", "--material", "InP", "--out", out],
-      ["hemt-baseline@3", "--temperature", "77", "--material", "AlGaAs", "--out", out],
-      ["hemt-baseline@3", "--temperature", "77", "--colour", "blue", "--out", out],
+      ["hemt-baseline", "3", "--temperature", "-1", "--out", out],
+      ["hemt-baseline", "3", "--temperature", "77", "--x", "2", "--out", out],
+      ["hemt-baseline", "3", "--temperature", "77", "--out", out, "--format", "xml"],
+      ["hemt-baseline", "3", "--temperature", "77", "--material", "InP", "--out", out],
+      ["hemt-baseline", "3", "--temperature", "77", "--material", "AlGaAs", "--out", out],
+      ["hemt-baseline", "3", "--temperature", "77", "--colour", "blue", "--out", out],
     ].map(async (bad) => [bad, await evaluate(bad)] as const));
     for (const [bad, run] of runs) {
       expect(run.code, bad.join(" ")).toBe(2);
       expect(run.stderr.trim().split("\n"), run.stderr).toHaveLength(1);
     }
-    expect((await evaluate(["hemt-baseline@3", "--temperature", "77", "--material", "AlGaAs", "--out", out])).stderr).toMatch(/--x: AlGaAs is an alloy/);
+    expect((await evaluate(["hemt-baseline", "3", "--temperature", "77", "--material", "AlGaAs", "--out", out])).stderr).toMatch(/--x: AlGaAs is an alloy/);
     expect(existsSync(out)).toBe(false);
   });
 });

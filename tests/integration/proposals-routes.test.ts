@@ -117,7 +117,7 @@ describe("deciding through the proposal page", () => {
 });
 
 describe("a stale proposal on its page", () => {
-  it("may be rejected without a rebase, is not approved, and the page says both", async () => {
+  it("may be rejected without being carried forward, is not approved, and the page says both", async () => {
     // [V01] GaAs a(300 K) = 5.65325 Å; two restatements of it compete for the same record.
     const [rec] = await t.db.select({ id: records.id }).from(records).innerJoin(materials, eq(materials.id, records.materialId)).where(and(eq(materials.key, "GaAs"), eq(records.conditionKey, "T=300|V=|x=")));
     const propose = async (value: string) => {
@@ -134,16 +134,24 @@ describe("a stale proposal on its page", () => {
     expect((await as.hanna.post(`/proposals/${first}`, { intent: "approve", version: await versionOf(first) })).status).toBe(302);
 
     const page = (await (await as.ravi.get(`/proposals/${second}`)).text()).replace(/<!-- -->/g, "");
-    expect(page).toContain("it cannot be approved until its author rebases it. A lead may still");
-    expect(page).toContain("reject it as it stands, with a reason, without asking for a rebase first.");
+    expect(page).toContain("it cannot be approved until its author carries it forward to the current value. A lead may");
+    expect(page).not.toMatch(/rebas/i);
+    const own = (await (await as.tomas.get(`/proposals/${second}`)).text()).replace(/<!-- -->/g, "");
+    expect(own).toContain('<input type="hidden" name="intent" value="carry-forward"/>');
+    expect(own).toContain(">Carry forward to the current value</button>");
+    expect(own).toContain(">stale: carry forward</span>");
+    expect(own).toContain(">waiting for a decision</span>");
+    expect(own).not.toMatch(/waiting for review/);
+    expect(own).not.toMatch(/rebas/i);
+    expect(page).toContain("still reject it as it stands, with a reason, without asking for it to be carried forward first.");
     expect(page).toMatch(/<button type="submit" class="btn-primary" disabled="">Approve<\/button>/);
-    expect(page).toContain("Stale: approving waits until its author rebases it. Rejecting is open now.");
+    expect(page).toContain("Stale: approving waits until its author carries it forward. Rejecting is open now.");
     expect(page).toMatch(/<button type="submit" class="btn">Reject<\/button>/);
 
     const version = await versionOf(second);
     const approve = await as.ravi.post(`/proposals/${second}`, { intent: "approve", version });
     expect(approve.status).toBe(409);
-    expect(await approve.text()).toContain("Its author must rebase the proposal first.");
+    expect(await approve.text()).toContain("Its author must carry it forward to the current value first.");
     const reject = await as.ravi.post(`/proposals/${second}`, { intent: "reject", version, reason: "The record already holds this value to four decimals." });
     expect(reject.status).toBe(302);
     const [row] = await t.db.select().from(proposals).where(eq(proposals.id, second));

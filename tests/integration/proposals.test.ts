@@ -11,7 +11,7 @@ import { loadUser, type CurrentUser } from "~/.server/permissions";
 import { decideProposal } from "~/.server/workflow/decide";
 import { isWorkflowError, type WorkflowError } from "~/.server/workflow/errors";
 import { sendDigests } from "~/.server/workflow/notices";
-import { addComment, createDraft, rebaseProposal, submitProposal, withdrawProposal } from "~/.server/workflow/proposals";
+import { addComment, createDraft, carryForwardProposal, submitProposal, withdrawProposal } from "~/.server/workflow/proposals";
 import { MAX_STASHES, restoreStash, stashPayload, STASHES_PER_ADDRESS } from "~/.server/workflow/stash";
 import { readProposalPayload } from "~/domain/proposal-schemas";
 import { listReviewQueue, loadProposalPage } from "~/.server/workflow/views";
@@ -103,7 +103,8 @@ describe("submitting a proposal", () => {
     const id = await submitted(who.tomas, gapRevision(recordIds.gaasGap300, "1.42248"));
     const toRavi = (await mailsTo("ravi.menon@kestrel-devices.test")).filter((m) => Number(m.file.split("-")[0]) >= after);
     expect(toRavi).toHaveLength(1);
-    expect(toRavi[0].subject).toBe("Review requested: GaAs · Band gap (Γ, 300 K)");
+    expect(toRavi[0].subject).toBe("GaAs · Band gap (Γ, 300 K): a proposal waits for your decision");
+    expect(toRavi[0].text).not.toMatch(/review/i);
     expect(toRavi[0].text).toContain("1.4225 eV → 1.42248 eV");
     expect(toRavi[0].text).toContain(`http://bandledger.test/proposals/${id}`);
     expect(toRavi[0].html).toContain(`href="http://bandledger.test/proposals/${id}"`);
@@ -198,8 +199,8 @@ describe("deciding", () => {
     const { version } = await versionOf(id);
     expect((await refusal(decideProposal(who.ravi, id, { decision: "reject", version, reason: "  " }))).details.fieldErrors?.reason).toMatch(/Say why/);
     await decideProposal(who.ravi, id, { decision: "reject", version, reason: "Keep five digits, as the 77 K record does." });
-    const mail = (await mailsTo("tomas.okafor@kestrel-devices.test")).filter((m) => Number(m.file.split("-")[0]) >= after && m.subject.startsWith("Rejected"));
-    expect(mail).toHaveLength(1);
+    const mail = (await mailsTo("tomas.okafor@kestrel-devices.test")).filter((m) => Number(m.file.split("-")[0]) >= after && m.subject.endsWith("rejected your proposal"));
+    expect(mail.map((m) => m.subject)).toEqual(["GaAs · Band gap (Γ, 300 K): Ravi Menon rejected your proposal"]);
     expect(mail[0].text).toContain("Ravi Menon rejected your proposal.");
     expect(mail[0].text).toContain("Reason: Keep five digits, as the 77 K record does.");
     expect((await refusal(decideProposal(who.hanna, id, { decision: "approve", version: version + 1 }))).message).toMatch(/^This proposal was already rejected by Ravi Menon/);
@@ -244,7 +245,7 @@ describe("deciding", () => {
 });
 
 describe("stale proposals", () => {
-  it("are refused until their author rebases them, and the author is shown the new current value", async () => {
+  it("are refused until their author carries them forward, and the author is shown the new current value", async () => {
     const rec = await recordOf("GaAs", "eg", "T=300|V=G|x=");
     const [based] = await t.db.select({ value: revisions.value }).from(revisions).where(eq(revisions.id, rec.currentRevisionId!));
     const first = await submitted(who.tomas, gapRevision(rec.id, "1.4224"));
@@ -256,24 +257,26 @@ describe("stale proposals", () => {
     expect(stale.message).toMatch(/its current value is now 1\.4224 eV/);
     const page = await loadProposalPage(who.mei, second);
     expect(page.stale).toMatchObject({ currentText: "1.4224 eV" });
-    expect(page.can.rebase).toBe(true);
+    expect(page.can.carryForward).toBe(true);
     expect(page.can.approve).toBe(false);
-    expect((await loadProposalPage(who.hanna, second)).can.rebase).toBe(false);
-    expect((await refusal(rebaseProposal(who.tomas, second, version))).code).toBe("forbidden");
-    expect((await refusal(rebaseProposal(who.mei, second, version - 1))).code).toBe("changed");
+    expect((await loadProposalPage(who.hanna, second)).can.carryForward).toBe(false);
+    expect((await refusal(carryForwardProposal(who.tomas, second, version))).code).toBe("forbidden");
+    expect((await refusal(carryForwardProposal(who.mei, second, version - 1))).code).toBe("changed");
     const after = Date.now();
-    await rebaseProposal(who.mei, second, version);
+    await carryForwardProposal(who.mei, second, version);
     // The leads it went to hear of the new base as each chose: Ravi by mail now, Hanna in her next digest.
     const toRavi = (await mailsTo("ravi.menon@kestrel-devices.test")).filter((m) => Number(m.file.split("-")[0]) >= after);
-    expect(toRavi.map((m) => m.subject)).toEqual(["Rebased: GaAs · Band gap (Γ, 300 K)"]);
+    expect(toRavi.map((m) => m.subject)).toEqual(["GaAs · Band gap (Γ, 300 K): carried forward onto the current value"]);
+    expect(toRavi[0].text).toContain("Mei Tanaka carried forward a proposal that waits for your decision: it now stands on the record's current value.");
+    expect(toRavi[0].text).not.toMatch(/rebas|review/i);
     expect(toRavi[0].text).toContain(`Now based on 1.4224 eV (it was based on ${based.value} eV).`);
     expect(toRavi[0].text).toContain("1.4224 eV → 1.4226 eV");
     expect(toRavi[0].text).toContain(`http://bandledger.test/proposals/${second}`);
     const link = `http://bandledger.test/proposals/${second}`;
-    const forHanna = await t.db.select().from(notices).where(and(eq(notices.userId, who.hanna.id), eq(notices.kind, "proposal.rebased"), eq(notices.link, link)));
+    const forHanna = await t.db.select().from(notices).where(and(eq(notices.userId, who.hanna.id), eq(notices.kind, "proposal.carried_forward"), eq(notices.link, link)));
     expect(forHanna.map((n) => n.sentAt)).toEqual([null]);
     expect(forHanna[0].bodyText).toContain(`Now based on 1.4224 eV (it was based on ${based.value} eV).`);
-    expect(await t.db.select().from(notices).where(and(eq(notices.userId, who.mei.id), eq(notices.kind, "proposal.rebased")))).toHaveLength(0);
+    expect(await t.db.select().from(notices).where(and(eq(notices.userId, who.mei.id), eq(notices.kind, "proposal.carried_forward")))).toHaveLength(0);
     expect((await refusal(decideProposal(who.hanna, second, { decision: "approve", version }))).code).toBe("changed");
     const done = await decideProposal(who.hanna, second, { decision: "approve", version: version + 1 });
     const [added] = await t.db.select().from(revisions).where(eq(revisions.id, done.resultRevisionId!));
@@ -290,19 +293,19 @@ describe("stale proposals", () => {
     await decideProposal(who.ravi, a, { decision: "approve", version: (await versionOf(a)).version });
     const e = await refusal(decideProposal(who.ravi, b, { decision: "approve", version: (await versionOf(b)).version }));
     expect(e.code).toBe("stale");
-    await rebaseProposal(who.mei, b, (await versionOf(b)).version);
+    await carryForwardProposal(who.mei, b, (await versionOf(b)).version);
     const [row] = await t.db.select().from(proposals).where(eq(proposals.id, b));
     expect(row.kind).toBe("revision");
-    const [told] = await t.db.select().from(notices).where(and(eq(notices.userId, who.hanna.id), eq(notices.kind, "proposal.rebased"), eq(notices.link, `http://bandledger.test/proposals/${b}`)));
+    const [told] = await t.db.select().from(notices).where(and(eq(notices.userId, who.hanna.id), eq(notices.kind, "proposal.carried_forward"), eq(notices.link, `http://bandledger.test/proposals/${b}`)));
     expect(told.bodyText).toContain("Now based on 5.8687 Å (it was based on no value (a new record)).");
     await decideProposal(who.ravi, b, { decision: "approve", version: row.version });
   });
 
-  it("tells no one of a rebased draft, since no lead was told of the draft", async () => {
+  it("tells no one of a draft carried forward, since no lead was told of the draft", async () => {
     const draft = await createDraft(who.mei, gapRevision(recordIds.gaasGap300, "1.42251"));
     const other = await submitted(who.tomas, gapRevision(recordIds.gaasGap300, "1.42249"));
     await decideProposal(who.ravi, other, { decision: "approve", version: (await versionOf(other)).version });
-    await rebaseProposal(who.mei, draft, (await versionOf(draft)).version);
+    await carryForwardProposal(who.mei, draft, (await versionOf(draft)).version);
     expect(await t.db.select().from(notices).where(eq(notices.link, `http://bandledger.test/proposals/${draft}`))).toHaveLength(0);
     await withdrawProposal(who.mei, draft);
   });
@@ -342,18 +345,19 @@ describe("many leads deciding at once", () => {
   });
 });
 
-describe("comments, digests and the audit log", () => {
+describe("remarks, digests and the audit log", () => {
   it("notices the people in the thread, and sends each digest person one digest", async () => {
     const id = await submitted(who.tomas, gapRevision(recordIds.gaasGap300, "1.42250"));
     await addComment(who.hanna, id, "Why five decimals here?");
     const after = Date.now();
     await addComment(who.tomas, id, "To match the 0 K fit to the last digit.");
-    const toHanna = await t.db.select().from(notices).where(and(eq(notices.userId, who.hanna.id), eq(notices.kind, "proposal.comment")));
+    const toHanna = await t.db.select().from(notices).where(and(eq(notices.userId, who.hanna.id), eq(notices.kind, "proposal.remark")));
     expect(toHanna).toHaveLength(1);
     expect(toHanna[0].bodyText).toContain("“To match the 0 K fit to the last digit.”");
-    expect((await mailsTo("ravi.menon@kestrel-devices.test")).filter((m) => m.subject.startsWith("Tomás Okafor commented"))).toHaveLength(0);
-    const toTomas = (await mailsTo("tomas.okafor@kestrel-devices.test")).filter((m) => m.subject.startsWith("Hanna Lindqvist commented"));
-    expect(toTomas).toHaveLength(1);
+    expect((await mailsTo("ravi.menon@kestrel-devices.test")).filter((m) => m.subject.startsWith("Tomás Okafor added a remark"))).toHaveLength(0);
+    const toTomas = (await mailsTo("tomas.okafor@kestrel-devices.test")).filter((m) => m.subject.startsWith("Hanna Lindqvist added a remark"));
+    expect(toTomas.map((m) => m.subject)).toEqual(["Hanna Lindqvist added a remark on GaAs · Band gap (Γ, 300 K)"]);
+    expect(toTomas[0].text).not.toMatch(/comment/i);
     const pending = await t.db.select().from(notices).where(and(eq(notices.userId, who.hanna.id), isNull(notices.sentAt)));
     expect(pending.length).toBeGreaterThan(1);
     const run = await sendDigests();
@@ -371,7 +375,7 @@ describe("comments, digests and the audit log", () => {
   it("writes every proposal event to the append-only audit log", async () => {
     const rows = await t.db.select({ action: auditLog.action }).from(auditLog).where(sql`${auditLog.action} LIKE 'proposal.%'`);
     const actions = new Set(rows.map((r) => r.action));
-    for (const a of ["proposal.create", "proposal.submit", "proposal.comment", "proposal.rebase", "proposal.approve", "proposal.reject", "proposal.withdraw"]) expect(actions).toContain(a);
+    for (const a of ["proposal.create", "proposal.submit", "proposal.remark", "proposal.carry_forward", "proposal.approve", "proposal.reject", "proposal.withdraw"]) expect(actions).toContain(a);
   });
 });
 

@@ -9,7 +9,7 @@ import { loadUser, type CurrentUser } from "~/.server/permissions";
 import { SetError } from "~/.server/sets/errors";
 import { compareSet } from "~/.server/sets/compare";
 import { itemsOfRelease, loadSetView, requireRelease, requireSet } from "~/.server/sets/queries";
-import { addMember, addMembersByFilter, createSet, freezeSet, removeMember, setWatch } from "~/.server/sets/service";
+import { addMember, addMembersByFilter, createSet, freezeSet, removeMember, setReleaseNotices } from "~/.server/sets/service";
 import { sha256Hex, verifyReleaseText } from "~/domain/release-format";
 import { CODATA_EDITION } from "~/domain/physics/constants";
 import packageJson from "../../package.json";
@@ -169,17 +169,17 @@ describe("composing and freezing a set", () => {
   });
 });
 
-describe("moved since the last release, comparing, and watching", () => {
-  it("marks a member whose record got a new revision, compares it with the release, and mails the watchers on the next freeze", async () => {
+describe("moved since the last release, comparing, and release notices", () => {
+  it("marks a member whose record got a new revision, compares it with the release, and sends release notices on the next freeze", async () => {
     const lead = await person("ravi.menon");
     const reader = await person("priya.raman");
-    expect(await setWatch(reader, "gaas-gaps", true, null)).toEqual({ changed: true });
-    expect(await setWatch(reader, "gaas-gaps", true, null)).toEqual({ changed: false });
-    await setWatch(lead, "gaas-gaps", true, null);
+    expect(await setReleaseNotices(reader, "gaas-gaps", true, null)).toEqual({ changed: true });
+    expect(await setReleaseNotices(reader, "gaas-gaps", true, null)).toEqual({ changed: false });
+    await setReleaseNotices(lead, "gaas-gaps", true, null);
     const digestReader = await person("hanna.lindqvist");
-    await setWatch(digestReader, "gaas-gaps", true, null);
-    const watchAudit = await t.db.select().from(auditLog).where(and(eq(auditLog.action, "set.watched"), eq(auditLog.actorId, reader.id)));
-    expect(watchAudit).toHaveLength(1);
+    await setReleaseNotices(digestReader, "gaas-gaps", true, null);
+    const noticesAudit = await t.db.select().from(auditLog).where(and(eq(auditLog.action, "set.notices_on"), eq(auditLog.actorId, reader.id)));
+    expect(noticesAudit).toHaveLength(1);
 
     const recordId = await recordIdOf("GaAs", "eg", "T=fit0|V=X|x=");
     const contributor = await person("tomas.okafor");
@@ -205,7 +205,9 @@ describe("moved since the last release, comparing, and watching", () => {
     const written = await freezeSet(lead, "gaas-gaps", {}, null);
     expect(written.number).toBe(2);
     const mail = await readLastMail(mailboxDir, reader.email, { after: before });
-    expect(mail.subject).toBe("GaAs gaps: release 2 frozen");
+    expect(mail.subject).toBe("GaAs gaps: release 2 is frozen and ready to download");
+    expect(mail.text).toContain("You receive this because you asked for release notices of the parameter set GaAs gaps; stop them on its page.");
+    expect(mail.text).not.toMatch(/watch/i);
     expect(mail.text).toContain(written.sha256);
     expect(mail.text).toContain("Against release 1: 1 changed, 0 added, 0 removed, 4 unchanged.");
     expect(mail.text).toContain("changed GaAs Eg (X, 0 K fit): 1.981 eV → 1.9810 eV");
@@ -219,9 +221,9 @@ describe("moved since the last release, comparing, and watching", () => {
     expect(queued).toHaveLength(1);
     expect(queued[0].bodyText).toContain("Against release 1: 1 changed, 0 added, 0 removed, 4 unchanged.");
     expect(queued[0].sentAt).toBeNull();
-    await setWatch(digestReader, "gaas-gaps", false, null);
-    expect(await setWatch(reader, "gaas-gaps", false, null)).toEqual({ changed: true });
-    expect(await t.db.select().from(auditLog).where(and(eq(auditLog.action, "set.unwatched"), eq(auditLog.actorId, reader.id)))).toHaveLength(1);
+    await setReleaseNotices(digestReader, "gaas-gaps", false, null);
+    expect(await setReleaseNotices(reader, "gaas-gaps", false, null)).toEqual({ changed: true });
+    expect(await t.db.select().from(auditLog).where(and(eq(auditLog.action, "set.notices_off"), eq(auditLog.actorId, reader.id)))).toHaveLength(1);
   });
 
   it("compareSet refuses the same release twice and an unknown release", async () => {

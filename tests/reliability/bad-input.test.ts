@@ -65,7 +65,7 @@ beforeAll(async () => {
 
   token = await demo.token("priya.raman");
   // The token's first use stamps last_used_at; it happens here, before the snapshot.
-  expect((await fetch(`${demo.url}/api/v1/whoami`, { headers: { authorization: `Bearer ${token}` } })).status).toBe(200);
+  expect((await fetch(`${demo.url}/api/v1/account`, { headers: { authorization: `Bearer ${token}` } })).status).toBe(200);
 });
 afterAll(async () => demo?.close());
 

@@ -17,9 +17,9 @@ import { HttpClient } from "../support/route-access";
 const AT_ONCE = 50;
 const ROUNDS = rounds(1, 5);
 
-const STALE = /^The record has changed since this proposal was based on it: its current value is now \S+ Å \(revision \d+\)\. Its author must rebase the proposal first\.$/;
+const STALE = /^The record has changed since this proposal was based on it: its current value is now \S+ Å \(revision \d+\)\. Its author must carry it forward to the current value first\.$/;
 const DECIDED = /^This proposal was already (approved|rejected) by (Ravi Menon|Hanna Lindqvist|Inês Carvalho) \(\d{4}-\d\d-\d\d \d\d:\d\d UTC\); a decided proposal is not decided again\.$/;
-const CHANGED = "The proposal changed since you opened it (its author rebased or edited it); look at it again before you decide.";
+const CHANGED = "The proposal changed since you opened it (its author carried it forward or edited it); look at it again before you decide.";
 const SET_CONFLICT = "The set changed since you opened it (someone edited or froze it). Reload the page, check the members and try again.";
 
 let t: TestDatabase;
@@ -172,8 +172,8 @@ describe(`${AT_ONCE} decisions on one proposal at once, approvals and rejections
   });
 });
 
-describe("authors rebasing stale proposals while leads approve them", () => {
-  it("every rebase lands, approvals win at most once per base revision, the rest are told why, and the chain stays linear", async () => {
+describe("authors carrying stale proposals forward while leads approve them", () => {
+  it("every carry-forward lands, approvals win at most once per base revision, the rest are told why, and the chain stays linear", async () => {
     for (let round = 1; round <= ROUNDS; round++) {
       // Forty-nine proposals on the current revision, made stale by a fiftieth that is approved first.
       const [first, ...stale] = await proposeMany(AT_ONCE);
@@ -181,16 +181,16 @@ describe("authors rebasing stale proposals while leads approve them", () => {
       const before = await revisionCount();
       const staleRows = await Promise.all(stale.map(proposalRow));
       const versions = staleRows.map((r) => r.version);
-      // Each author rebases (version v → v + 1) while a lead approves the rebased version v + 1 that may not exist yet.
-      type Move = Answer & { kind: "rebase" | "approve"; id: number };
+      // Each author carries forward (version v → v + 1) while a lead approves the carried version v + 1 that may not exist yet.
+      type Move = Answer & { kind: "carry-forward" | "approve"; id: number };
       const answers = fulfilled(await allAtOnce(stale.flatMap((id, i): (() => Promise<Move>)[] => {
         const author = AUTHORS.find((a) => ids[a] === staleRows[i].author_id)!;
         return [
-          async () => ({ kind: "rebase", id, ...(await answerOf(as[author].post(`/proposals/${id}`, { intent: "rebase", version: String(versions[i]) }))) }),
+          async () => ({ kind: "carry-forward", id, ...(await answerOf(as[author].post(`/proposals/${id}`, { intent: "carry-forward", version: String(versions[i]) }))) }),
           async () => ({ kind: "approve", id, ...(await approve(LEADS[i % 3], id, versions[i] + 1)) }),
         ];
       })));
-      const rebases = answers.filter((a) => a.kind === "rebase");
+      const carried = answers.filter((a) => a.kind === "carry-forward");
       const approvals = answers.filter((a) => a.kind === "approve");
       const won = approvals.filter((a) => a.status === 302);
       const lost = approvals.filter((a) => a.status !== 302);
@@ -204,9 +204,9 @@ describe("authors rebasing stale proposals while leads approve them", () => {
           reasons.stale++;
         }
       }
-      console.log(`races: rebase + approve, round ${round}: ${rebases.length} rebases (${rebases.filter((r) => r.status === 302).length} done), ${approvals.length} approvals: ${won.length} won, ${reasons.stale} told stale, ${reasons.changed} told the proposal changed`);
-      // A rebase races only approvals of the version it creates, so every one of them must land.
-      for (const r of rebases) {
+      console.log(`races: carry forward + approve, round ${round}: ${carried.length} carried forward (${carried.filter((r) => r.status === 302).length} done), ${approvals.length} approvals: ${won.length} won, ${reasons.stale} told stale, ${reasons.changed} told the proposal changed`);
+      // Carrying forward races only approvals of the version it creates, so every one of them must land.
+      for (const r of carried) {
         expect(r.status, alertText(r.text) ?? "").toBe(302);
         expect(r.location).toBe(`/proposals/${r.id}`);
       }

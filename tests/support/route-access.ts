@@ -33,6 +33,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
   "routes/admin.audit": { access: "role:admin", requests: [{ method: "GET", path: "/admin/audit?action=auth.sign_in" }] },
   "routes/dev.mailbox": { access: "dev-only", requests: [{ method: "GET", path: "/dev/mailbox" }] },
   "routes/dev.mailbox.$file": { access: "dev-only", requests: [{ method: "GET", path: (f) => `/dev/mailbox/${f.mailFile}` }] },
+  "routes/api.v1.account": { access: "api-user", requests: [{ method: "GET", path: "/api/v1/account" }] },
   "routes/api.v1.whoami": { access: "api-user", requests: [{ method: "GET", path: "/api/v1/whoami" }] },
 
   "routes/registry": { access: "role:reader", requests: [{ method: "GET", path: "/registry?family=arsenides&quantity=eg&sort=value&dir=desc" }] },
@@ -44,7 +45,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 
   "routes/sets": { access: "signed-in", requests: [{ method: "GET", path: "/sets" }] },
   "routes/sets.new": { access: "role:contributor", requests: [{ method: "GET", path: "/sets/new" }, { method: "POST", path: "/sets/new", form: { name: "" } }] },
-  "routes/sets.detail": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline" }, { method: "POST", path: "/sets/hemt-baseline", form: { intent: "unwatch" } }] },
+  "routes/sets.detail": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline" }, { method: "POST", path: "/sets/hemt-baseline", form: { intent: "notices-off" } }] },
   "routes/sets.compare": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/compare?from=2&to=3" }] },
   "routes/sets.release": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/releases/3" }, { method: "GET", path: "/sets/hemt-baseline/releases/3?temperature=77&material=AlGaAs&x=0.3" }] },
   "routes/releases.json": { access: "signed-in", requests: [{ method: "GET", path: "/sets/hemt-baseline/releases/3.json" }] },

@@ -191,6 +191,18 @@ describe("bandledger, its dispatcher in process", () => {
     expect(mass.stderr).toMatch(/--mass: the mass 1e-7 m0 is too small/);
   });
 
+  it("lists download (not pull) and names a release as two arguments in every usage that takes one", async () => {
+    const help = (await inProcess("--help")).stdout;
+    expect(help).toMatch(/^  download  /m);
+    expect(help).not.toMatch(/\bpull\b/);
+    for (const name of ["download", "evaluate"]) {
+      const usage = (await inProcess(name, "--help")).stdout;
+      expect(usage).toMatch(new RegExp(`^usage: bandledger ${name} <set> <release> `));
+      expect(usage).toContain("e.g. hemt-baseline 3");
+      expect(usage).not.toMatch(/@|\bpull\b/);
+    }
+  });
+
   it("prints usage with --help, for each command too, and exits 0", async () => {
     for (const args of [["--help"], ["nfe", "--help"], ["calc", "--help"], ["calc", "bowing", "--help"], ["help"]]) {
       const run = await inProcess(...args);
@@ -218,7 +230,7 @@ describe("bandledger, its dispatcher in process", () => {
     [["nfe", "--period", "5", "--coefficient", "1:0.5", "--stated", "1", "--stated", "-1"], /--stated is given twice/],
     [["nfe", "--period", "5", "--coefficient", "1:0.5", "--gap", "1", "--gap", "2"], /--gap is given twice/],
     [["calc", "bowing", "--eg-a", "3.099", "--eg-b", "1.519", "--c0", "-0.127", "--c0", "-0.2", "--x", "0.3"], /--c0 is given twice/],
-    [["pull", "hemt-baseline@3", "--out", "a.json", "--out", "b.json"], /--out is given twice/],
+    [["download", "hemt-baseline", "3", "--out", "a.json", "--out", "b.json"], /--out is given twice/],
     [["verify", "release.json", "--sha256", "ab", "--sha256", "cd"], /--sha256 is given twice/],
     [["calc", "varshni", "--eg0", "1.519", "--alpha", "0.5405", "--beta", "204"], /--temperature is required/],
     [["calc", "bowing", "--eg-a", "3.099", "--eg-b", "1.519", "--c0", "-0.127", "--x", "1.5"], /--x must be at most 1/],
@@ -226,16 +238,24 @@ describe("bandledger, its dispatcher in process", () => {
     [["calc", "vegard", "--a-a", "5.6611", "--a-b", "5.65325", "--x", "0.3", "extra"], /unexpected argument "extra"/],
     // evaluate refuses its arguments before it reaches a server (the token is a well-formed placeholder).
     [["evaluate", "--temperature", "77", "--out", "x.json", "--token", "blt_t"], /name the release to evaluate/],
-    [["evaluate", "hemt-baseline", "--temperature", "77", "--out", "x.json", "--token", "blt_t"], /name the release as <set>@<release>, e\.g\. hemt-baseline@3/],
-    [["evaluate", "hemt-baseline@0", "--temperature", "77", "--out", "x.json", "--token", "blt_t"], /name the release as/],
-    [["evaluate", "hemt-baseline@3", "--out", "x.json", "--token", "blt_t"], /--temperature is required/],
-    [["evaluate", "hemt-baseline@3", "--temperature", "-3", "--out", "x.json", "--token", "blt_t"], /--temperature: choose a temperature from 0 to 2000 K/],
-    [["evaluate", "hemt-baseline@3", "--temperature", "cold", "--out", "x.json", "--token", "blt_t"], /--temperature: .*not a decimal number/],
-    [["evaluate", "hemt-baseline@3", "--temperature", "77", "--x", "1.01", "--out", "x.json", "--token", "blt_t"], /--x: the composition x lies between 0 and 1/],
-    [["evaluate", "hemt-baseline@3", "--temperature", "77", "--missing-bowing", "cubic", "--out", "x.json", "--token", "blt_t"], /--missing-bowing/],
-    [["evaluate", "hemt-baseline@3", "--temperature", "77", "--token", "blt_t"], /--out is required/],
-    [["evaluate", "hemt-baseline@3", "--temperature", "77", "--out", "x", "--format", "xml", "--token", "blt_t"], /--format must be json or csv/],
-    [["pull", "hemt-baseline@three", "--out", "x.json", "--token", "blt_t"], /name the release as <set>@<release>/],
+    [["evaluate", "hemt-baseline", "--temperature", "77", "--out", "x.json", "--token", "blt_t"], /name the release number after the set, e\.g\. hemt-baseline 3/],
+    [["evaluate", "hemt-baseline", "0", "--temperature", "77", "--out", "x.json", "--token", "blt_t"], /the release number is a whole number from 1/],
+    [["evaluate", "Hemt_Baseline", "3", "--temperature", "77", "--out", "x.json", "--token", "blt_t"], /the set's short name is lower-case letters/],
+    [["evaluate", "hemt-baseline", "3", "4", "--temperature", "77", "--out", "x.json", "--token", "blt_t"], /unexpected argument "4"/],
+    [["evaluate", "hemt-baseline", "3", "--out", "x.json", "--token", "blt_t"], /--temperature is required/],
+    [["evaluate", "hemt-baseline", "3", "--temperature", "-3", "--out", "x.json", "--token", "blt_t"], /--temperature: choose a temperature from 0 to 2000 K/],
+    [["evaluate", "hemt-baseline", "3", "--temperature", "cold", "--out", "x.json", "--token", "blt_t"], /--temperature: .*not a decimal number/],
+    [["evaluate", "hemt-baseline", "3", "--temperature", "77", "--x", "1.01", "--out", "x.json", "--token", "blt_t"], /--x: the composition x lies between 0 and 1/],
+    [["evaluate", "hemt-baseline", "3", "--temperature", "77", "--missing-bowing", "cubic", "--out", "x.json", "--token", "blt_t"], /--missing-bowing/],
+    [["evaluate", "hemt-baseline", "3", "--temperature", "77", "--token", "blt_t"], /--out is required/],
+    [["evaluate", "hemt-baseline", "3", "--temperature", "77", "--out", "x", "--format", "xml", "--token", "blt_t"], /--format must be json or csv/],
+    [["download", "hemt-baseline", "three", "--out", "x.json", "--token", "blt_t"], /the release number is a whole number from 1, e\.g\. hemt-baseline 3 \(got "three"\)/],
+    [["download", "--out", "x.json", "--token", "blt_t"], /name the release to download as <set> <release>, e\.g\. hemt-baseline 3/],
+    // Earlier versions' words: one line naming today's form, exit 2, nothing fetched.
+    [["pull", "hemt-baseline@3", "--out", "x.json", "--token", "blt_t"], /^bandledger: "pull" is now "download": bandledger download hemt-baseline 3 --out x\.json --token blt_t\n$/],
+    [["pull"], /^bandledger: "pull" is now "download": bandledger download <set> <release> --out <file>\n$/],
+    [["download", "hemt-baseline@3", "--out", "x.json", "--token", "blt_t"], /^bandledger download: name the release as two arguments, the set and the release number: "hemt-baseline 3" \(the form "hemt-baseline@3" is no longer read\)\n$/],
+    [["evaluate", "hemt-baseline@3", "--temperature", "77", "--out", "x.json", "--token", "blt_t"], /^bandledger evaluate: name the release as two arguments, .*"hemt-baseline 3"/],
   ];
   for (const [args, message] of bad) {
     it(`exits 2 with one line naming the problem: ${args.join(" ")}`, async () => {

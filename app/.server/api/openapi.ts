@@ -6,6 +6,7 @@ import {
   setDetailSchema, setListSchema,
 } from "~/domain/api-schemas";
 import { SOFTWARE_VERSION } from "../sets/service";
+import { DEPRECATED_PATHS, DEPRECATED_SINCE, deprecationHeaders } from "./deprecation";
 
 const ERROR_TEXT: Record<number, string> = {
   400: "The request is malformed: a parameter or body field is missing or of the wrong kind.",
@@ -44,12 +45,10 @@ function buildRegistry(): OpenAPIRegistry {
   });
   registry.registerComponent("securitySchemes", "browserSession", { type: "apiKey", in: "cookie", name: "__bandledger", description: "The signed-in browser's session cookie." });
 
+  const accountSchema = z.object({ user: z.object({ id: z.number().int(), email: z.string(), name: z.string(), role: z.enum(["reader", "contributor", "lead", "admin"]), leadFamilyIds: z.array(z.number().int()) }) });
   registry.registerPath({
-    method: "get", path: "/api/v1/whoami", tags: ["account"], summary: "Whom the credentials stand for",
-    responses: {
-      200: json(z.object({ user: z.object({ id: z.number().int(), email: z.string(), name: z.string(), role: z.enum(["reader", "contributor", "lead", "admin"]), leadFamilyIds: z.array(z.number().int()) }) }), "The user."),
-      ...errors(401),
-    },
+    method: "get", path: "/api/v1/account", tags: ["account"], summary: "Whom the credentials stand for",
+    responses: { 200: json(accountSchema, "The user."), ...errors(401) },
   });
   registry.registerPath({
     method: "get", path: "/api/v1/materials", tags: ["registry"], summary: "Materials with their family",
@@ -154,7 +153,35 @@ function buildRegistry(): OpenAPIRegistry {
     method: "get", path: "/api/v1/openapi.json", tags: ["meta"], summary: "This description (OpenAPI 3.1)", security: [],
     responses: { 200: { description: "The OpenAPI document.", content: { "application/json": { schema: z.record(z.string(), z.unknown()) } } } },
   });
+  registerDeprecated(registry);
   return registry;
+}
+
+/**
+ * Each old address answers as its successor for one release: the successor's operation again, marked deprecated,
+ * with the Deprecation and Link headers on every answer.
+ */
+function registerDeprecated(registry: OpenAPIRegistry): void {
+  const byPath = new Map(registry.definitions.flatMap((d) => (d.type === "route" ? [[`${d.route.method} ${d.route.path}`, d.route] as const] : [])));
+  for (const { path, successor } of DEPRECATED_PATHS) {
+    const example = deprecationHeaders(successor);
+    const headers = {
+      Deprecation: { description: `RFC 9745: deprecated since ${DEPRECATED_SINCE.toISOString()}, as a structured-field date (${example.Deprecation}).`, schema: { type: "string" as const, example: example.Deprecation } },
+      Link: { description: "RFC 8288: the address that replaces this one.", schema: { type: "string" as const, example: example.Link } },
+    };
+    for (const method of ["get", "post"] as const) {
+      const op = byPath.get(`${method} ${successor}`);
+      if (!op) continue;
+      registry.registerPath({
+        ...op,
+        path,
+        deprecated: true,
+        summary: `${op.summary} (old address of ${successor})`,
+        description: `Deprecated: use ${successor}. This address answers the same for one release more; every answer carries Deprecation and Link headers.`,
+        responses: Object.fromEntries(Object.entries(op.responses).map(([code, r]) => [code, { ...r, headers: { ...("headers" in r ? r.headers : {}), ...headers } }])),
+      });
+    }
+  }
 }
 
 let cached: ReturnType<OpenApiGeneratorV31["generateDocument"]> | undefined;

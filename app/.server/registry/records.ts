@@ -56,7 +56,7 @@ async function nextSeq(tx: Tx, recordId: number): Promise<number> {
 
 function checkBase(recordId: number, current: number | null, base: number | null) {
   if (current !== base) {
-    throw new RegistryError("stale", `Record ${recordId} has changed since this change was based on it; rebase it on the current revision.`, {
+    throw new RegistryError("stale", `Record ${recordId} has changed since this change was based on it; carry it forward to the current revision.`, {
       recordId,
       currentRevisionId: current,
     });

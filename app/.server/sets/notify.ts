@@ -4,7 +4,7 @@ import { sendMail } from "../mail/send";
 import { layout } from "../mail/templates";
 import { queueNotices } from "../workflow/notices";
 import { compareSet, comparisonLines, type Comparison } from "./compare";
-import { requireRelease, requireSet, watchersOf } from "./queries";
+import { requireRelease, requireSet, releaseNoticeRecipients } from "./queries";
 
 export type FreezeSummary = { headline: string; lines: string[] };
 
@@ -18,28 +18,28 @@ export function freezeSummary(number: number, itemCount: number, comparison: Com
   };
 }
 
-/** Mails every active watcher but the person who froze it: the new release, its hash and what changed since the previous one. */
-export async function notifyWatchersOfFreeze(slug: string, number: number, actorId: number): Promise<number> {
+/** Mails everyone active who gets release notices for the set but the person who froze it: the new release, its hash and what changed since the previous one. */
+export async function sendReleaseNotices(slug: string, number: number, actorId: number): Promise<number> {
   const set = await requireSet(slug);
   const release = await requireRelease(set, number);
-  const watchers = (await watchersOf(set.id)).filter((w) => w.id !== actorId);
-  if (watchers.length === 0) return 0;
+  const recipients = (await releaseNoticeRecipients(set.id)).filter((w) => w.id !== actorId);
+  if (recipients.length === 0) return 0;
   const comparison = number > 1 ? await compareSet(slug, number - 1, number) : null;
   const summary = freezeSummary(number, release.itemCount, comparison);
   const publicUrl = env().BANDLEDGER_PUBLIC_URL.replace(/\/$/, "");
   const link = comparison ? `${publicUrl}/sets/${slug}/compare?from=${number - 1}&to=${number}` : `${publicUrl}/sets/${slug}/releases/${number}`;
-  // Watchers who chose the daily digest get the same summary in it, through the proposals' notice queue.
-  const digest = watchers.filter((w) => w.notifyMode === "digest");
+  // Those who chose the daily digest get the same summary in it, through the proposals' notice queue.
+  const digest = recipients.filter((w) => w.notifyMode === "digest");
   await queueNotices(db(), digest.map((w) => w.id), {
     kind: "set.frozen",
-    subject: `${set.name}: release ${number} frozen`,
+    subject: `${set.name}: release ${number} is frozen and ready to download`,
     bodyText: [`${release.frozenBy} froze release ${number} of ${set.name} (${release.itemCount} values).`, `SHA-256 of the release: ${release.sha256}`, summary.headline, ...summary.lines.slice(0, 50)].join("\n"),
     link,
   });
-  for (const w of watchers.filter((x) => x.notifyMode !== "digest")) {
+  for (const w of recipients.filter((x) => x.notifyMode !== "digest")) {
     const mail = layout({
       to: w.email,
-      subject: `${set.name}: release ${number} frozen`,
+      subject: `${set.name}: release ${number} is frozen and ready to download`,
       greeting: `Hello ${w.name},`,
       blocks: [
         { kind: "p", text: `${release.frozenBy} froze release ${number} of ${set.name} (${release.itemCount} values).` },
@@ -50,9 +50,9 @@ export async function notifyWatchersOfFreeze(slug: string, number: number, actor
         { kind: "button", label: comparison ? "See the comparison" : "See the release", url: link },
       ],
       publicUrl,
-      reason: `You receive this because you watch the parameter set ${set.name}; unwatch it on its page.`,
+      reason: `You receive this because you asked for release notices of the parameter set ${set.name}; stop them on its page.`,
     });
     await sendMail(mail);
   }
-  return watchers.length;
+  return recipients.length;
 }

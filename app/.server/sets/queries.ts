@@ -213,12 +213,12 @@ export async function loadSetView(slug: string, ex: Executor = db()): Promise<Se
   };
 }
 
-export async function isWatching(setId: number, userId: number, ex: Executor = db()): Promise<boolean> {
+export async function getsReleaseNotices(setId: number, userId: number, ex: Executor = db()): Promise<boolean> {
   const [row] = await ex.select({ userId: setWatches.userId }).from(setWatches).where(and(eq(setWatches.setId, setId), eq(setWatches.userId, userId))).limit(1);
   return Boolean(row);
 }
 
-export async function watchersOf(setId: number, ex: Executor = db()): Promise<{ id: number; email: string; name: string; notifyMode: "immediate" | "digest" }[]> {
+export async function releaseNoticeRecipients(setId: number, ex: Executor = db()): Promise<{ id: number; email: string; name: string; notifyMode: "immediate" | "digest" }[]> {
   return ex
     .select({ id: users.id, email: users.email, name: users.name, notifyMode: users.notifyMode })
     .from(setWatches)

@@ -12,7 +12,7 @@ import { isDuplicateKey } from "../registry/records";
 import { SetError } from "./errors";
 import { currentRowsOf, eligibleRows, hasCurrentApprovedValue, loadPinnedItems, toReleaseItem, type Pin } from "./items";
 import { memberRecordIds, requireSet, type SetRow } from "./queries";
-import { notifyWatchersOfFreeze } from "./notify";
+import { sendReleaseNotices } from "./notify";
 
 export const SOFTWARE_VERSION: string = packageJson.version;
 
@@ -204,7 +204,7 @@ async function nextReleaseNumber(tx: Tx, setId: number): Promise<number> {
 /**
  * Freezes the set's members at their current approved revisions into the next release, in one transaction. With
  * `expectedVersion` (what the page showed) any edit or freeze since then is a conflict; without it, concurrent
- * freezes queue on the set's row and get consecutive numbers. Watchers get an e-mail with the comparison.
+ * freezes queue on the set's row and get consecutive numbers. Everyone who gets its release notices gets an e-mail with the comparison.
  */
 export async function freezeSet(actor: CurrentUser, slug: string, options: { expectedVersion?: number }, request: Request | null): Promise<WrittenRelease> {
   requireFreezer(actor);
@@ -223,17 +223,17 @@ export async function freezeSet(actor: CurrentUser, slug: string, options: { exp
     return writeRelease(tx, { set: locked, number, pins: rows.map((r) => ({ recordId: r.recordId, revisionId: r.revisionId! })), frozenBy: { id: actor.id, name: actor.name }, frozenAt: new Date() });
   });
   await audit(actorOf(actor), "set.frozen", { type: "release", id: written.releaseId }, request, { slug, number: written.number, sha256: written.sha256, itemCount: written.itemCount });
-  await notifyWatchersOfFreeze(slug, written.number, actor.id).catch((e) => console.error("freeze notice not sent:", e));
+  await sendReleaseNotices(slug, written.number, actor.id).catch((e) => console.error("freeze notice not sent:", e));
   return written;
 }
 
-export async function setWatch(actor: CurrentUser, slug: string, watch: boolean, request: Request | null): Promise<{ changed: boolean }> {
+export async function setReleaseNotices(actor: CurrentUser, slug: string, on: boolean, request: Request | null): Promise<{ changed: boolean }> {
   const set = await requireSet(slug);
-  const [result] = watch
+  const [result] = on
     ? await db().insert(setWatches).ignore().values({ setId: set.id, userId: actor.id })
     : await db().delete(setWatches).where(and(eq(setWatches.setId, set.id), eq(setWatches.userId, actor.id)));
   const changed = result.affectedRows > 0;
-  if (changed) await audit(actorOf(actor), watch ? "set.watched" : "set.unwatched", { type: "parameter_set", id: set.id }, request, { slug });
+  if (changed) await audit(actorOf(actor), on ? "set.notices_on" : "set.notices_off", { type: "parameter_set", id: set.id }, request, { slug });
   return { changed };
 }
 

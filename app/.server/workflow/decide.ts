@@ -96,7 +96,7 @@ export async function decideProposal(actor: Actor, id: number, input: DecisionIn
         if (!facts.material || !(await mayDecide(tx, actor.id, facts.material.familyId))) {
           throw new WorkflowError("forbidden", `Only a lead of ${facts.material?.familyName ?? "the material's family"} or an admin decides this proposal.`);
         }
-        if (row.version !== input.version) throw new WorkflowError("changed", "The proposal changed since you opened it (its author rebased or edited it); look at it again before you decide.");
+        if (row.version !== input.version) throw new WorkflowError("changed", "The proposal changed since you opened it (its author carried it forward or edited it); look at it again before you decide.");
         if (input.decision === "approve" && facts.stale) throw staleError(facts);
         const state = input.decision === "approve" ? "approved" : "rejected";
         const won = await tx
@@ -123,7 +123,7 @@ export async function decideProposal(actor: Actor, id: number, input: DecisionIn
         const [now] = await db().select().from(proposals).where(eq(proposals.id, id));
         if (!now) throw new WorkflowError("not_found", "There is no such proposal.");
         if (now.state !== "submitted") throw await notDecidableError(db(), now);
-        if (now.version !== input.version) throw new WorkflowError("changed", "The proposal changed since you opened it (its author rebased it); look at it again before you decide.");
+        if (now.version !== input.version) throw new WorkflowError("changed", "The proposal changed since you opened it (its author carried it forward); look at it again before you decide.");
         if (attempt < 5) continue;
         throw new WorkflowError("changed", "The proposal is being changed right now; try again in a moment.");
       }

@@ -60,7 +60,7 @@ export async function proposalFormAction(request: Request, draftId: number | nul
     id ??= await createDraft(user, payload, request);
     if (intent === "submit") {
       await submitProposal(user, id, payload, request);
-      return redirectWithFlash(request, `/proposals/${id}`, { kind: "ok", message: "Submitted for review: the leads of the family have been told." });
+      return redirectWithFlash(request, `/proposals/${id}`, { kind: "ok", message: "Submitted for a decision: the leads of the family have been told." });
     }
     const saved = proposalId === null ? { savedAt: new Date() } : await saveDraft(user, id, payload);
     if (intent === "autosave") return data(result({ intent, proposalId: id, savedAt: saved.savedAt.toISOString() }));

@@ -12,7 +12,7 @@ const clip = (s: string, n: number) => (s.length > n ? `${s.slice(0, n - 1)}…`
 export function submittedNotice(p: ProposalSummary, authorName: string, link: string): NoticeContent {
   return {
     kind: "proposal.submitted",
-    subject: clip(`Review requested: ${p.title}`, 200),
+    subject: clip(`${p.title}: a proposal waits for your decision`, 200),
     bodyText: `${authorName} proposes a change in a family you lead.\n${p.title}\n${p.change}\nIt needs a lead other than its author to approve or reject it.`,
     link,
   };
@@ -21,8 +21,8 @@ export function submittedNotice(p: ProposalSummary, authorName: string, link: st
 export function batchNotice(count: number, familyName: string, authorName: string, fileName: string, link: string): NoticeContent {
   return {
     kind: "proposal.batch",
-    subject: clip(`Review requested: ${count} proposal${count === 1 ? "" : "s"} for ${familyName} from ${fileName}`, 200),
-    bodyText: `${authorName} uploaded ${fileName}: ${count} proposal${count === 1 ? "" : "s"} for materials of ${familyName}, a family you lead, wait for review.`,
+    subject: clip(`${familyName}: ${count} proposal${count === 1 ? " waits" : "s wait"} for your decision (from ${fileName})`, 200),
+    bodyText: `${authorName} uploaded ${fileName}: ${count} proposal${count === 1 ? "" : "s"} for materials of ${familyName}, a family you lead, wait for a decision.`,
     link,
   };
 }
@@ -35,23 +35,23 @@ export function decisionNotice(p: ProposalSummary, decision: "approved" | "rejec
     reason ? `${decision === "rejected" ? "Reason" : "Note"}: ${reason}` : null,
     decision === "approved" ? "The new value is now the current one in the registry; the old one stays in the record's history." : null,
   ].filter((l): l is string => l !== null);
-  return { kind: `proposal.${decision}`, subject: clip(`${decision === "approved" ? "Approved" : "Rejected"}: ${p.title}`, 200), bodyText: lines.join("\n"), link };
+  return { kind: `proposal.${decision}`, subject: clip(`${p.title}: ${deciderName} ${decision} your proposal`, 200), bodyText: lines.join("\n"), link };
 }
 
-export function rebaseNotice(p: ProposalSummary, authorName: string, from: string, to: string, link: string): NoticeContent {
+export function carryForwardNotice(p: ProposalSummary, authorName: string, from: string, to: string, link: string): NoticeContent {
   return {
-    kind: "proposal.rebased",
-    subject: clip(`Rebased: ${p.title}`, 200),
-    bodyText: `${authorName} rebased a proposal waiting for your review on the record's current value.\n${p.title}\nNow based on ${to} (it was based on ${from}).\n${p.change}\nLook at it again before you decide.`,
+    kind: "proposal.carried_forward",
+    subject: clip(`${p.title}: carried forward onto the current value`, 200),
+    bodyText: `${authorName} carried forward a proposal that waits for your decision: it now stands on the record's current value.\n${p.title}\nNow based on ${to} (it was based on ${from}).\n${p.change}\nLook at it again before you decide.`,
     link,
   };
 }
 
-export function commentNotice(p: ProposalSummary, commenterName: string, body: string, link: string): NoticeContent {
+export function remarkNotice(p: ProposalSummary, commenterName: string, body: string, link: string): NoticeContent {
   return {
-    kind: "proposal.comment",
-    subject: clip(`${commenterName} commented: ${p.title}`, 200),
-    bodyText: `${commenterName} wrote on the proposal ${p.title}:\n“${clip(body, 1500)}”`,
+    kind: "proposal.remark",
+    subject: clip(`${commenterName} added a remark on ${p.title}`, 200),
+    bodyText: `${commenterName} added a remark on the proposal ${p.title}:\n“${clip(body, 1500)}”`,
     link,
   };
 }

@@ -10,7 +10,7 @@ import type { Executor, Tx } from "../registry/executor";
 import { loadProposalCatalogue } from "./catalogue";
 import { WorkflowError } from "./errors";
 import { loadOneFact, summaryOf, withUnit, type ProposalFacts } from "./facts";
-import { commentNotice, rebaseNotice, submittedNotice } from "./notice-templates";
+import { carryForwardNotice, remarkNotice, submittedNotice } from "./notice-templates";
 import { deliverImmediate, publicLink, queueNotices } from "./notices";
 
 export const proposalPath = (id: number) => `/proposals/${id}`;
@@ -151,12 +151,12 @@ async function serverChecks(ex: Executor, facts: ProposalFacts, payload: Proposa
 
 export function staleError(facts: ProposalFacts): WorkflowError {
   if (facts.row.kind === "new_record") {
-    return new WorkflowError("stale", `A record under these conditions was created since this proposal was written (record ${facts.existingRecordId}); its author must rebase the proposal onto it.`, {
+    return new WorkflowError("stale", `A record under these conditions was created since this proposal was written (record ${facts.existingRecordId}); its author must carry the proposal forward onto it.`, {
       recordId: facts.existingRecordId ?? undefined,
     });
   }
   const now = facts.currentValue?.kind === "retirement" ? "retired" : `${facts.currentValue?.value ?? "—"} ${facts.quantity?.canonicalUnit ?? ""}`.trim();
-  return new WorkflowError("stale", `The record has changed since this proposal was based on it: its current value is now ${now} (revision ${facts.record?.currentRevisionId}). Its author must rebase the proposal first.`, {
+  return new WorkflowError("stale", `The record has changed since this proposal was based on it: its current value is now ${now} (revision ${facts.record?.currentRevisionId}). Its author must carry it forward to the current value first.`, {
     recordId: facts.record?.id,
     currentRevisionId: facts.record?.currentRevisionId ?? null,
   });
@@ -225,9 +225,9 @@ export async function withdrawProposal(actor: Actor, id: number, request: Reques
 
 /**
  * The author moves a stale proposal onto the record's current revision (a new-record proposal whose record was
- * created meanwhile becomes a new value for it). The version check refuses a rebase of a page that is out of date.
+ * created meanwhile becomes a new value for it). The version check refuses carrying forward from a page that is out of date.
  */
-export async function rebaseProposal(actor: Actor, id: number, version: number, request: Request | null = null): Promise<{ baseRevisionId: number | null }> {
+export async function carryForwardProposal(actor: Actor, id: number, version: number, request: Request | null = null): Promise<{ baseRevisionId: number | null }> {
   await ownOpenProposal(db(), actor, id);
   const facts = await loadOneFact(db(), id);
   if (!facts) throw new WorkflowError("not_found", "There is no such proposal.");
@@ -250,14 +250,14 @@ export async function rebaseProposal(actor: Actor, id: number, version: number, 
       .update(proposals)
       .set({ kind, recordId, baseRevisionId: record.currentRevisionId, payload, version: sql`${proposals.version} + 1`, updatedAt: sql`NOW(3)` })
       .where(and(eq(proposals.id, id), eq(proposals.version, version), eq(proposals.authorId, actor.id), inArray(proposals.state, ["draft", "submitted"])));
-    if (affectedRows(result) === 0) throw new WorkflowError("changed", "The proposal changed since this page was loaded; look at it again before you rebase.");
+    if (affectedRows(result) === 0) throw new WorkflowError("changed", "The proposal changed since this page was loaded; look at it again before you carry it forward.");
     // A submitted proposal was noticed to the leads it goes to; they hear of the new base the same way (a draft told no one).
-    const rebased = await loadOneFact(tx, id);
-    if (!rebased || rebased.row.state !== "submitted" || !rebased.material) return [];
-    const reviewers = await reviewersOf(tx, rebased.material.familyId, rebased.row.authorId);
-    return queueNotices(tx, reviewers, rebaseNotice(summaryOf(rebased), actor.name, baseText(facts), baseText(rebased), publicLink(proposalPath(id))));
+    const moved = await loadOneFact(tx, id);
+    if (!moved || moved.row.state !== "submitted" || !moved.material) return [];
+    const reviewers = await reviewersOf(tx, moved.material.familyId, moved.row.authorId);
+    return queueNotices(tx, reviewers, carryForwardNotice(summaryOf(moved), actor.name, baseText(facts), baseText(moved), publicLink(proposalPath(id))));
   });
-  await audit(actor, "proposal.rebase", { type: "proposal", id }, request, { fromRevisionId: from, toRevisionId: record.currentRevisionId, recordId });
+  await audit(actor, "proposal.carry_forward", { type: "proposal", id }, request, { fromRevisionId: from, toRevisionId: record.currentRevisionId, recordId });
   await deliverImmediate(noticeIds);
   return { baseRevisionId: record.currentRevisionId };
 }
@@ -278,7 +278,7 @@ export async function isInvolved(ex: Executor, actor: Actor, facts: ProposalFact
   return Boolean(c);
 }
 
-/** The people in a proposal's thread: its author, everyone who commented, and whoever decided it. */
+/** The people in a proposal's thread: its author, everyone who added a remark, and whoever decided it. */
 async function threadPeople(ex: Executor, row: { id: number; authorId: number; decidedBy: number | null }): Promise<number[]> {
   const commenters = await ex.selectDistinct({ id: proposalComments.authorId }).from(proposalComments).where(eq(proposalComments.proposalId, row.id));
   return [row.authorId, ...commenters.map((c) => c.id), ...(row.decidedBy ? [row.decidedBy] : [])];
@@ -287,18 +287,18 @@ async function threadPeople(ex: Executor, row: { id: number; authorId: number; d
 /** A comment in the proposal's thread, noticed to the others in it. */
 export async function addComment(actor: Actor, id: number, body: string, request: Request | null = null): Promise<number> {
   const text = body.trim();
-  if (!text) throw new WorkflowError("invalid", "Write a comment first.", { fieldErrors: { body: "Write a comment first." } });
-  if (text.length > 4000) throw new WorkflowError("invalid", "A comment has at most 4000 characters.", { fieldErrors: { body: "A comment has at most 4000 characters." } });
+  if (!text) throw new WorkflowError("invalid", "Write a remark first.", { fieldErrors: { body: "Write a remark first." } });
+  if (text.length > 4000) throw new WorkflowError("invalid", "A remark has at most 4000 characters.", { fieldErrors: { body: "A remark has at most 4000 characters." } });
   const facts = await loadOneFact(db(), id);
   if (!facts || !(await isInvolved(db(), actor, facts))) throw new WorkflowError("not_found", "There is no such proposal.");
   if (!hasRole(actor, "contributor")) throw new WorkflowError("forbidden", "Commenting needs the contributor role.");
   const { commentId, noticeIds } = await db().transaction(async (tx: Tx) => {
     const people = (await threadPeople(tx, facts.row)).filter((p) => p !== actor.id);
     const [{ id: commentId }] = await tx.insert(proposalComments).values({ proposalId: id, authorId: actor.id, body: text }).$returningId();
-    const noticeIds = await queueNotices(tx, people, commentNotice(summaryOf(facts), actor.name, text, publicLink(proposalPath(id))));
+    const noticeIds = await queueNotices(tx, people, remarkNotice(summaryOf(facts), actor.name, text, publicLink(proposalPath(id))));
     return { commentId, noticeIds };
   });
-  await audit(actor, "proposal.comment", { type: "proposal", id }, request, { commentId });
+  await audit(actor, "proposal.remark", { type: "proposal", id }, request, { commentId });
   await deliverImmediate(noticeIds);
   return commentId;
 }

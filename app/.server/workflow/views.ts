@@ -136,7 +136,7 @@ export async function loadProposalPage(actor: Actor, id: number) {
       decideBlocked,
       approve: decideBlocked === null && f.row.state === "submitted" && !f.stale,
       withdraw: author && open,
-      rebase: author && open && f.stale,
+      carryForward: author && open && f.stale,
       edit: author && f.row.state === "draft",
       attach: author && open,
       comment: hasRole(actor, "contributor"),

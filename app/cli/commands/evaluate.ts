@@ -8,10 +8,10 @@ import { parseReleaseRef, RELEASE_REF_EXAMPLE, RELEASE_REF_FORM } from "../relea
 const usage = `usage: bandledger evaluate ${RELEASE_REF_FORM} --temperature K --out <file> [--material KEY [--x FRACTION]] [--substrate KEY]
                           [--missing-bowing name|linear] [--format json|csv] [--url URL] [--token TOKEN]
 
-Downloads a frozen release and verifies it as pull does, then evaluates it here, offline: Eg at Γ, X and L by
+Downloads a frozen release and verifies it as download does, then evaluates it here, offline: Eg at Γ, X and L by
 Varshni (with bowing for an alloy), a(T) (Vegard for an alloy), the Kane mass and, on a substrate, the lattice
 mismatch and an alloy's lattice-matched x, each with its formula, pinned revisions and GUM uncertainty.
-  ${RELEASE_REF_FORM}    the set's short name and release number, e.g. ${RELEASE_REF_EXAMPLE}
+  ${RELEASE_REF_FORM}    the set's short name and the release number, e.g. ${RELEASE_REF_EXAMPLE}
   --temperature      K, 0 to 2000
   --material         one material of the release (default: every one; an alloy needs --x)
   --x                an alloy's composition, the fraction of end member A (AlAs in Al(x)Ga(1-x)As)
@@ -53,8 +53,7 @@ export const evaluateCommand: Command = {
       io.stdout(`${usage}\n`);
       return 0;
     }
-    if (positionals.length !== 1) throw new UsageError(positionals.length ? `unexpected argument "${positionals[1]}"` : `name the release to evaluate, e.g. ${RELEASE_REF_EXAMPLE}`);
-    const ref = parseReleaseRef(positionals[0]);
+    const ref = parseReleaseRef(positionals, "evaluate");
     if (values.temperature === undefined) throw new UsageError("--temperature is required (in K, e.g. 77)");
     const parsed = parseEvaluationQuery({
       temperature: values.temperature as string, material: values.material as string | undefined, x: values.x as string | undefined,

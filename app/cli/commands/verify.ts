@@ -2,7 +2,7 @@ import { readFile } from "node:fs/promises";
 import { verifyReleaseText } from "../../domain/release-format";
 import { type Command, type Io, UsageError } from "../command";
 import { parseOptions } from "../args";
-import { EXIT_FAILED, EXIT_MISMATCH } from "./pull";
+import { EXIT_FAILED, EXIT_MISMATCH } from "./download";
 
 const usage = `usage: bandledger verify <file> [--sha256 HEX]
 

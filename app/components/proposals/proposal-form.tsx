@@ -352,7 +352,7 @@ export function ProposalForm(props: {
       ) : null}
 
       <div className="flex flex-wrap items-center gap-3">
-        <button type="submit" name="intent" value="submit" className="btn-primary" disabled={submitting}>Submit for review</button>
+        <button type="submit" name="intent" value="submit" className="btn-primary" disabled={submitting}>Submit for a decision</button>
         <button type="submit" name="intent" value="save" className="btn" disabled={submitting}>Save draft</button>
         <p className="text-sm text-muted" role="status" aria-live="polite" data-testid="autosave-status">
           {fetcher.data?.sessionExpired ? (

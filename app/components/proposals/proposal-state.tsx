@@ -10,7 +10,7 @@ const STYLE: Record<ProposalState, string> = {
 
 const LABEL: Record<ProposalState, string> = {
   draft: "draft",
-  submitted: "waiting for review",
+  submitted: "waiting for a decision",
   approved: "approved",
   rejected: "rejected",
   withdrawn: "withdrawn",
@@ -21,7 +21,7 @@ export function ProposalStateBadge({ state }: { state: ProposalState }) {
 }
 
 export function StaleBadge() {
-  return <span className="inline-block rounded border border-warn px-1.5 py-0.5 text-xs font-medium whitespace-nowrap text-warn">needs rebase</span>;
+  return <span className="inline-block rounded border border-warn px-1.5 py-0.5 text-xs font-medium whitespace-nowrap text-warn">stale: carry forward</span>;
 }
 
 /** Age of a proposal against the page's own clock, so server and browser render the same text. */

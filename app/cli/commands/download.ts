@@ -6,10 +6,10 @@ import { parseReleaseRef, RELEASE_REF_EXAMPLE, RELEASE_REF_FORM, type ReleaseRef
 
 export { EXIT_FAILED, EXIT_MISMATCH } from "../release-download";
 
-const usage = `usage: bandledger pull ${RELEASE_REF_FORM} --out <file> [--format json|csv] [--compression auto|br|gzip|none] [--url URL] [--token TOKEN]
+const usage = `usage: bandledger download ${RELEASE_REF_FORM} --out <file> [--format json|csv] [--compression auto|br|gzip|none] [--url URL] [--token TOKEN]
 
 Downloads a frozen release, verifies it and writes it only when every check holds.
-  ${RELEASE_REF_FORM}  the set's short name and release number, e.g. ${RELEASE_REF_EXAMPLE}
+  ${RELEASE_REF_FORM}  the set's short name and the release number, e.g. ${RELEASE_REF_EXAMPLE}
   --out            where to write the file (written whole, through a temporary file and a rename)
   --format         json (default) or csv
   --compression    what to ask the server for: auto (default: brotli or gzip), br, gzip, or none
@@ -25,14 +25,14 @@ const options = {
   help: { type: "boolean", short: "h" },
 } as const;
 
-export async function pullRelease(ref: ReleaseRef, format: ReleaseFormat, server: Server, out: string, compression: Compression = "auto"): Promise<{ sha256: string; bytes: number; encoding: string; meta: ReleaseMeta }> {
+export async function downloadRelease(ref: ReleaseRef, format: ReleaseFormat, server: Server, out: string, compression: Compression = "auto"): Promise<{ sha256: string; bytes: number; encoding: string; meta: ReleaseMeta }> {
   const release = await fetchVerifiedRelease(ref, format, server, compression);
   await writeWhole(out, release.bytes);
   return { sha256: release.meta.sha256, bytes: release.bytes.length, encoding: release.encoding, meta: release.meta };
 }
 
-export const pullCommand: Command = {
-  name: "pull",
+export const downloadCommand: Command = {
+  name: "download",
   summary: "download a frozen release, verify its SHA-256 and write it (exit 3 on a mismatch)",
   usage,
   async run(args: string[], io: Io) {
@@ -41,8 +41,7 @@ export const pullCommand: Command = {
       io.stdout(`${usage}\n`);
       return 0;
     }
-    if (positionals.length !== 1) throw new UsageError(positionals.length ? `unexpected argument "${positionals[1]}"` : `name the release to pull, e.g. ${RELEASE_REF_EXAMPLE}`);
-    const ref = parseReleaseRef(positionals[0]);
+    const ref = parseReleaseRef(positionals, "download");
     const out = values.out as string | undefined;
     if (!out) throw new UsageError("--out is required");
     const format = (values.format as string | undefined) ?? "json";
@@ -51,12 +50,12 @@ export const pullCommand: Command = {
     if (!(COMPRESSIONS as readonly string[]).includes(compression)) throw new UsageError(`--compression must be auto, br, gzip or none (got "${compression}")`);
     const server = serverFrom(values);
     try {
-      const result = await pullRelease(ref, format, server, out, compression as Compression);
+      const result = await downloadRelease(ref, format, server, out, compression as Compression);
       io.stdout(`ok ${out}: ${result.meta.set.name} release ${ref.number}, ${result.meta.itemCount} values, sha256 ${result.sha256} (sent as ${result.encoding})\n`);
       return 0;
     } catch (e) {
       if (e instanceof ReleaseFailure) {
-        io.stderr(`bandledger pull: ${e.message}\n`);
+        io.stderr(`bandledger download: ${e.message}\n`);
         return e.exitCode;
       }
       throw e;

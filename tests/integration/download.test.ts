@@ -66,9 +66,9 @@ function startProxy(): Promise<void> {
 }
 
 beforeAll(async () => {
-  demo = await startDemoServer("pull");
+  demo = await startDemoServer("download");
   token = await demo.token("priya.raman");
-  dir = mkdtempSync(path.join(os.tmpdir(), "bl-pull-"));
+  dir = mkdtempSync(path.join(os.tmpdir(), "bl-download-"));
   await startProxy();
 });
 afterAll(async () => {
@@ -78,10 +78,10 @@ afterAll(async () => {
 
 const leftovers = () => readdirSync(dir).filter((f) => f.endsWith(".part"));
 
-describe("bandledger pull against the running server", () => {
-  it("downloads hemt-baseline@3, verifies it and writes exactly the served bytes", async () => {
+describe("bandledger download against the running server", () => {
+  it("downloads hemt-baseline 3, verifies it and writes exactly the served bytes", async () => {
     const out = path.join(dir, "hemt-baseline-r3.json");
-    const run = await cli(["pull", "hemt-baseline@3", "--out", out, "--url", demo.url, "--token", token]);
+    const run = await cli(["download", "hemt-baseline", "3", "--out", out, "--url", demo.url, "--token", token]);
     expect(run.stderr).toBe("");
     expect(run.code).toBe(0);
     const meta = await (await fetch(`${demo.url}/api/v1/sets/hemt-baseline/releases/3`, { headers: { Authorization: `Bearer ${token}` } })).json();
@@ -93,7 +93,7 @@ describe("bandledger pull against the running server", () => {
 
   it("takes the token from BANDLEDGER_TOKEN and writes the CSV form", async () => {
     const out = path.join(dir, "r2.csv");
-    const run = await cli(["pull", "hemt-baseline@2", "--out", out, "--format", "csv", "--url", demo.url], { BANDLEDGER_TOKEN: token });
+    const run = await cli(["download", "hemt-baseline", "2", "--out", out, "--format", "csv", "--url", demo.url], { BANDLEDGER_TOKEN: token });
     expect(run.code).toBe(0);
     expect(readFileSync(out, "utf8")).toMatch(/^# schema: "bandledger\.release"\r\n/);
   });
@@ -102,7 +102,7 @@ describe("bandledger pull against the running server", () => {
     const written: Record<string, Buffer> = {};
     for (const compression of ["auto", "br", "gzip", "none"]) {
       const out = path.join(dir, `compare-${compression}.${format}`);
-      const run = await cli(["pull", "hemt-baseline@3", "--out", out, "--format", format, "--compression", compression, "--url", demo.url, "--token", token]);
+      const run = await cli(["download", "hemt-baseline", "3", "--out", out, "--format", format, "--compression", compression, "--url", demo.url, "--token", token]);
       expect(run.stderr).toBe("");
       expect(run.code).toBe(0);
       expect(run.stdout).toContain(`(sent as ${{ auto: "br", br: "br", gzip: "gzip", none: "identity" }[compression]})`);
@@ -115,7 +115,7 @@ describe("bandledger pull against the running server", () => {
 
   it("passes through an honest proxy", async () => {
     mode = "pass";
-    const run = await cli(["pull", "hemt-baseline@1", "--out", path.join(dir, "via-proxy.json"), "--url", proxyUrl, "--token", token]);
+    const run = await cli(["download", "hemt-baseline", "1", "--out", path.join(dir, "via-proxy.json"), "--url", proxyUrl, "--token", token]);
     expect(run.code).toBe(0);
   });
 
@@ -127,13 +127,13 @@ describe("bandledger pull against the running server", () => {
   ])("refuses a download with %s: exit 3, no file written, an existing file left alone", async (_label, m) => {
     mode = m;
     const fresh = path.join(dir, `corrupt-${m}.json`);
-    const run = await cli(["pull", "hemt-baseline@3", "--out", fresh, "--url", proxyUrl, "--token", token]);
+    const run = await cli(["download", "hemt-baseline", "3", "--out", fresh, "--url", proxyUrl, "--token", token]);
     expect(run.code).toBe(3);
-    expect(run.stderr).toMatch(/^bandledger pull: hash mismatch, nothing written: .+\n$/);
+    expect(run.stderr).toMatch(/^bandledger download: hash mismatch, nothing written: .+\n$/);
     expect(existsSync(fresh)).toBe(false);
     const kept = path.join(dir, "kept.json");
     writeFileSync(kept, "previous contents\n");
-    expect((await cli(["pull", "hemt-baseline@3", "--out", kept, "--url", proxyUrl, "--token", token])).code).toBe(3);
+    expect((await cli(["download", "hemt-baseline", "3", "--out", kept, "--url", proxyUrl, "--token", token])).code).toBe(3);
     expect(readFileSync(kept, "utf8")).toBe("previous contents\n");
     expect(leftovers()).toEqual([]);
     mode = "pass";
@@ -141,20 +141,31 @@ describe("bandledger pull against the running server", () => {
 
   it("exits 1 with one line for an unknown set, a bad token and an unreachable server", async () => {
     const out = path.join(dir, "never.json");
-    const unknown = await cli(["pull", "no-such-set@1", "--out", out, "--url", demo.url, "--token", token]);
+    const unknown = await cli(["download", "no-such-set", "1", "--out", out, "--url", demo.url, "--token", token]);
     expect(unknown.code).toBe(1);
-    expect(unknown.stderr).toMatch(/^bandledger pull: the server refused \(404\): .+\n$/);
-    const badToken = await cli(["pull", "hemt-baseline@3", "--out", out, "--url", demo.url, "--token", "blt_" + "x".repeat(43)]);
+    expect(unknown.stderr).toMatch(/^bandledger download: the server refused \(404\): .+\n$/);
+    const badToken = await cli(["download", "hemt-baseline", "3", "--out", out, "--url", demo.url, "--token", "blt_" + "x".repeat(43)]);
     expect(badToken.code).toBe(1);
     expect(badToken.stderr).toMatch(/\(401\)/);
-    const closed = await cli(["pull", "hemt-baseline@3", "--out", out, "--url", "http://127.0.0.1:9", "--token", token]);
+    const closed = await cli(["download", "hemt-baseline", "3", "--out", out, "--url", "http://127.0.0.1:9", "--token", token]);
     expect(closed.code).toBe(1);
     expect(closed.stderr).toMatch(/cannot reach/);
     expect(existsSync(out)).toBe(false);
   });
 
+  it("answers the old words (pull, set@N) with the new form and exit 2, fetching and writing nothing", async () => {
+    const out = path.join(dir, "old-words.json");
+    const old = await cli(["pull", "hemt-baseline@3", "--out", out, "--url", demo.url, "--token", token]);
+    expect(old.code).toBe(2);
+    expect(old.stderr).toBe(`bandledger: "pull" is now "download": bandledger download hemt-baseline 3 --out ${out} --url ${demo.url} --token ${token}\n`);
+    const at = await cli(["download", "hemt-baseline@3", "--out", out, "--url", demo.url, "--token", token]);
+    expect(at.code).toBe(2);
+    expect(at.stderr).toMatch(/^bandledger download: name the release as two arguments, the set and the release number: "hemt-baseline 3"[^\n]*\n$/);
+    expect(existsSync(out)).toBe(false);
+  });
+
   it("exits 2 for wrong arguments", async () => {
-    for (const args of [["pull", "hemt-baseline", "--out", "x.json", "--token", token], ["pull", "hemt-baseline@3", "--token", token], ["pull", "hemt-baseline@3", "--out", "x.json"], ["pull", "hemt-baseline@3", "--out", "x", "--format", "xml", "--token", token], ["pull", "hemt-baseline@3", "--out", "x", "--compression", "zip", "--token", token]]) {
+    for (const args of [["download", "hemt-baseline", "--out", "x.json", "--token", token], ["download", "hemt-baseline", "3", "--token", token], ["download", "hemt-baseline", "3", "--out", "x.json"], ["download", "hemt-baseline", "3", "--out", "x", "--format", "xml", "--token", token], ["download", "hemt-baseline", "3", "--out", "x", "--compression", "zip", "--token", token]]) {
       const run = await cli(args);
       expect(run.code, args.join(" ")).toBe(2);
       expect(run.stderr.trim().split("\n")).toHaveLength(1);
@@ -163,7 +174,7 @@ describe("bandledger pull against the running server", () => {
 });
 
 describe("bandledger verify, offline", () => {
-  it("says ok for a pulled file, both forms, and mismatch for a changed byte or a different expected hash", async () => {
+  it("says ok for a downloaded file, both forms, and mismatch for a changed byte or a different expected hash", async () => {
     const json = path.join(dir, "hemt-baseline-r3.json");
     const ok = await cli(["verify", json]);
     expect(ok.code).toBe(0);
