@@ -6,7 +6,7 @@ import path from "node:path";
 import { promisify } from "node:util";
 import { brotliDecompress, gunzip } from "node:zlib";
 import { verifyReleaseText, type ReleaseContent, type ReleaseFormat } from "../domain/release-format";
-import { UsageError } from "./command";
+import { type Io, UsageError } from "./command";
 import type { Values } from "./args";
 import type { ReleaseRef } from "./release-ref";
 
@@ -33,6 +33,28 @@ export const SERVER_USAGE = `  --url            the Bandledger server; default $
   --token          a personal API token; default $BANDLEDGER_TOKEN`;
 
 export type Server = { baseUrl: string; token: string };
+
+/** --out (required) and --format (json, the default, or csv) of a command that writes a release's file. */
+export function outAndFormat(values: Values): { out: string; format: ReleaseFormat } {
+  const out = values.out as string | undefined;
+  if (!out) throw new UsageError("--out is required");
+  const format = (values.format as string | undefined) ?? "json";
+  if (format !== "json" && format !== "csv") throw new UsageError(`--format must be json or csv (got "${format}")`);
+  return { out, format };
+}
+
+/** Runs a command's work with the server; a ReleaseFailure is one line on stderr and its exit code. */
+export async function exitOnReleaseFailure(command: string, io: Io, work: () => Promise<number>): Promise<number> {
+  try {
+    return await work();
+  } catch (e) {
+    if (e instanceof ReleaseFailure) {
+      io.stderr(`bandledger ${command}: ${e.message}\n`);
+      return e.exitCode;
+    }
+    throw e;
+  }
+}
 
 /** The server and token from --url/--token or the environment; a missing or malformed one is a usage error. */
 export function serverFrom(values: Values): Server {

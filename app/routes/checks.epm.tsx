@@ -5,7 +5,7 @@ import { blankFormFactors, epmQueryOf, runEpmPage, type EpmFormValues, type EpmP
 import { guardSolveOrRespond } from "~/.server/checks/solve-guard";
 import { requireUser } from "~/.server/permissions";
 import { BandStructureChart } from "~/components/charts";
-import { CheckExamples, useRecheckedForm, VerdictBadge } from "~/components/checks";
+import { CheckExamples, LengthField, useRecheckedForm, VerdictBadge } from "~/components/checks";
 import { FieldError, FormError, invalidProps } from "~/components/field-error";
 
 export const meta: Route.MetaFunction = () => [{ title: "Crystal check · Bandledger" }];
@@ -248,17 +248,7 @@ export default function CrystalCheckPage({ loaderData }: Route.ComponentProps) {
               <FieldError id="epm-structure-error" message={shown.structure} />
             </fieldset>
 
-            <div>
-              <label htmlFor="epm-lattice" className="label normal-case tracking-normal">Lattice constant a</label>
-              <div className="mt-1 flex gap-2">
-                <input id="epm-lattice" name="lattice" inputMode="decimal" defaultValue={values.lattice} className="field font-mono" {...invalidProps("epm-lattice-error", shown.lattice)} />
-                <select name="unit" defaultValue={values.unit} className="field w-24" aria-label="Unit of the lattice constant">
-                  <option value="angstrom">Å</option>
-                  <option value="nm">nm</option>
-                </select>
-              </div>
-              <FieldError id="epm-lattice-error" message={shown.lattice} />
-            </div>
+            <LengthField id="epm-lattice" name="lattice" label="Lattice constant a" value={values.lattice} unit={values.unit} unitLabel="Unit of the lattice constant" error={shown.lattice} />
 
             <fieldset>
               <legend className="label normal-case tracking-normal">Form factors</legend>

@@ -3,7 +3,7 @@ import type { Route } from "./+types/checks.nfe";
 import { NFE_MAX_ROWS, nfeQueryOf, runNfePage, type NfeFormValues, type NfePageData } from "~/.server/checks";
 import { guardSolveOrRespond } from "~/.server/checks/solve-guard";
 import { requireUser } from "~/.server/permissions";
-import { CheckExamples, NfePlot, useRecheckedForm, VerdictBadge } from "~/components/checks";
+import { CheckExamples, LengthField, NfePlot, useRecheckedForm, VerdictBadge } from "~/components/checks";
 import { FieldError, invalidProps } from "~/components/field-error";
 
 export const meta: Route.MetaFunction = () => [{ title: "Nearly-free-electron check · Bandledger" }];
@@ -153,17 +153,7 @@ export default function NfeCheckPage({ loaderData }: Route.ComponentProps) {
       <div className="grid gap-6 lg:grid-cols-[22rem_minmax(0,1fr)]">
         <div className="space-y-4">
           <Form key={JSON.stringify(values)} method="get" ref={formRef} className="card space-y-4 p-5" onChange={recheck} noValidate aria-label="Inputs of the check">
-            <div>
-              <label htmlFor="nfe-period" className="label normal-case tracking-normal">Period a</label>
-              <div className="mt-1 flex gap-2">
-                <input id="nfe-period" name="period" inputMode="decimal" defaultValue={values.period} className="field font-mono" {...invalidProps("nfe-period-error", shown.period)} />
-                <select name="unit" defaultValue={values.unit} className="field w-24" aria-label="Unit of the period">
-                  <option value="angstrom">Å</option>
-                  <option value="nm">nm</option>
-                </select>
-              </div>
-              <FieldError id="nfe-period-error" message={shown.period} />
-            </div>
+            <LengthField id="nfe-period" name="period" label="Period a" value={values.period} unit={values.unit} unitLabel="Unit of the period" error={shown.period} />
 
             <fieldset>
               <legend className="label normal-case tracking-normal">Fourier coefficients U_n (eV)</legend>

@@ -1,7 +1,7 @@
 import type { ReleaseFormat } from "../../domain/release-format";
 import { type Command, type Io, UsageError } from "../command";
 import { parseOptions } from "../args";
-import { COMPRESSIONS, fetchVerifiedRelease, ReleaseFailure, SERVER_USAGE, serverFrom, serverOptions, writeWhole, type Compression, type ReleaseMeta, type Server } from "../release-download";
+import { COMPRESSIONS, exitOnReleaseFailure, fetchVerifiedRelease, outAndFormat, SERVER_USAGE, serverFrom, serverOptions, writeWhole, type Compression, type ReleaseMeta, type Server } from "../release-download";
 import { parseReleaseRef, RELEASE_REF_EXAMPLE, RELEASE_REF_FORM, type ReleaseRef } from "../release-ref";
 
 export { EXIT_FAILED, EXIT_MISMATCH } from "../release-download";
@@ -42,23 +42,14 @@ export const downloadCommand: Command = {
       return 0;
     }
     const ref = parseReleaseRef(positionals, "download");
-    const out = values.out as string | undefined;
-    if (!out) throw new UsageError("--out is required");
-    const format = (values.format as string | undefined) ?? "json";
-    if (format !== "json" && format !== "csv") throw new UsageError(`--format must be json or csv (got "${format}")`);
+    const { out, format } = outAndFormat(values);
     const compression = (values.compression as string | undefined) ?? "auto";
     if (!(COMPRESSIONS as readonly string[]).includes(compression)) throw new UsageError(`--compression must be auto, br, gzip or none (got "${compression}")`);
     const server = serverFrom(values);
-    try {
+    return exitOnReleaseFailure("download", io, async () => {
       const result = await downloadRelease(ref, format, server, out, compression as Compression);
       io.stdout(`ok ${out}: ${result.meta.set.name} release ${ref.number}, ${result.meta.itemCount} values, sha256 ${result.sha256} (sent as ${result.encoding})\n`);
       return 0;
-    } catch (e) {
-      if (e instanceof ReleaseFailure) {
-        io.stderr(`bandledger download: ${e.message}\n`);
-        return e.exitCode;
-      }
-      throw e;
-    }
+    });
   },
 };

@@ -2,7 +2,7 @@ import packageJson from "../../../package.json";
 import { evaluateRelease, evaluationText, parseEvaluationQuery, type EvaluationField } from "../../domain/derived";
 import { type Command, type Io, UsageError } from "../command";
 import { parseOptions } from "../args";
-import { fetchVerifiedRelease, ReleaseFailure, SERVER_USAGE, serverFrom, serverOptions, writeWhole } from "../release-download";
+import { exitOnReleaseFailure, fetchVerifiedRelease, outAndFormat, SERVER_USAGE, serverFrom, serverOptions, writeWhole } from "../release-download";
 import { parseReleaseRef, RELEASE_REF_EXAMPLE, RELEASE_REF_FORM } from "../release-ref";
 
 const usage = `usage: bandledger evaluate ${RELEASE_REF_FORM} --temperature K --out <file> [--material KEY [--x FRACTION]] [--substrate KEY]
@@ -63,12 +63,9 @@ export const evaluateCommand: Command = {
       const [field, message] = Object.entries(parsed.errors)[0] as [EvaluationField, string];
       throw new UsageError(asOption(field, message));
     }
-    const out = values.out as string | undefined;
-    if (!out) throw new UsageError("--out is required");
-    const format = (values.format as string | undefined) ?? "json";
-    if (format !== "json" && format !== "csv") throw new UsageError(`--format must be json or csv (got "${format}")`);
+    const { out, format } = outAndFormat(values);
     const server = serverFrom(values);
-    try {
+    return exitOnReleaseFailure("evaluate", io, async () => {
       const release = await fetchVerifiedRelease(ref, "json", server);
       const result = evaluateRelease(release.content, release.sha256, parsed.query, packageJson.version);
       if (!result.ok) throw new UsageError(asOption(result.field, result.message));
@@ -77,12 +74,6 @@ export const evaluateCommand: Command = {
       const missing = result.evaluation.materials.reduce((n, m) => n + m.missing.length, 0);
       io.stdout(`ok ${out}: ${release.meta.set.name} release ${ref.number} at ${parsed.query.temperatureK} K, ${count} values${missing ? `, ${missing} not derived (listed in the file)` : ""}, sha256 ${release.sha256}\n`);
       return 0;
-    } catch (e) {
-      if (e instanceof ReleaseFailure) {
-        io.stderr(`bandledger evaluate: ${e.message}\n`);
-        return e.exitCode;
-      }
-      throw e;
-    }
+    });
   },
 };

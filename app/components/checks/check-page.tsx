@@ -1,5 +1,6 @@
 import { useEffect, useRef, useState } from "react";
 import { Link, useFetcher } from "react-router";
+import { FieldError, invalidProps } from "../field-error";
 
 // What the physics check pages (/checks/nfe, /checks/epm) share: the form re-checked while one types, and the list
 // of worked examples beside it.
@@ -55,5 +56,24 @@ export function CheckExamples({ path, examples }: { path: string; examples: read
         ))}
       </ul>
     </nav>
+  );
+}
+
+/** A length with its unit (Å or nm), its message under it: the period of the NFE check, the lattice constant of the crystal check. */
+export function LengthField({ id, name, label, value, unit, unitLabel, error }: {
+  id: string; name: string; label: string; value: string; unit: string; unitLabel: string; error: string | undefined;
+}) {
+  return (
+    <div>
+      <label htmlFor={id} className="label normal-case tracking-normal">{label}</label>
+      <div className="mt-1 flex gap-2">
+        <input id={id} name={name} inputMode="decimal" defaultValue={value} className="field font-mono" {...invalidProps(`${id}-error`, error)} />
+        <select name="unit" defaultValue={unit} className="field w-24" aria-label={unitLabel}>
+          <option value="angstrom">Å</option>
+          <option value="nm">nm</option>
+        </select>
+      </div>
+      <FieldError id={`${id}-error`} message={error} />
+    </div>
   );
 }
