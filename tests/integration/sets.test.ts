@@ -1,7 +1,7 @@
 import { mkdtempSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
-import { and, eq, sql } from "drizzle-orm";
+import { and, eq, isNull, sql } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { auditLog, notices, parameterSets, releaseItems, releases, records } from "~/.server/db/schema";
 import type { Sink } from "~/.server/mail/sink";
@@ -10,6 +10,7 @@ import { SetError } from "~/.server/sets/errors";
 import { compareSet } from "~/.server/sets/compare";
 import { itemsOfRelease, loadSetView, requireRelease, requireSet } from "~/.server/sets/queries";
 import { addMember, addMembersByFilter, createSet, freezeSet, removeMember, setReleaseNotices } from "~/.server/sets/service";
+import { sendDigests } from "~/.server/workflow/notices";
 import { sha256Hex, verifyReleaseText } from "~/domain/release-format";
 import { CODATA_EDITION } from "~/domain/physics/constants";
 import packageJson from "../../package.json";
@@ -221,6 +222,15 @@ describe("moved since the last release, comparing, and release notices", () => {
     expect(queued).toHaveLength(1);
     expect(queued[0].bodyText).toContain("Against release 1: 1 changed, 0 added, 0 removed, 4 unchanged.");
     expect(queued[0].sentAt).toBeNull();
+    // The digest that carries it says it is about a set, and why it comes.
+    const waiting = await t.db.select().from(notices).where(and(eq(notices.userId, digestReader.id), isNull(notices.sentAt)));
+    // Hanna, a lead, also has the demo's proposal notices waiting.
+    expect(waiting.filter((n) => n.kind === "set.frozen")).toHaveLength(1);
+    expect(waiting.some((n) => n.kind.startsWith("proposal."))).toBe(true);
+    expect((await sendDigests()).failed).toBe(0);
+    const digest = (await readMailbox(mailboxDir)).filter((m) => m.to.includes(digestReader.email.toLowerCase()) && m.subject.startsWith("Bandledger digest"));
+    expect(digest.map((m) => m.subject)).toEqual([`Bandledger digest: ${waiting.length} notices about proposals and sets`]);
+    expect(digest[0].text).toContain("asked for release notices of a set");
     await setReleaseNotices(digestReader, "gaas-gaps", false, null);
     expect(await setReleaseNotices(reader, "gaas-gaps", false, null)).toEqual({ changed: true });
     expect(await t.db.select().from(auditLog).where(and(eq(auditLog.action, "set.notices_off"), eq(auditLog.actorId, reader.id)))).toHaveLength(1);

@@ -58,6 +58,7 @@ export function remarkNotice(p: ProposalSummary, commenterName: string, body: st
 
 type Recipient = { email: string; name: string };
 
+const DIGEST_REASON_WITH_SETS = "You receive this because you take part in a proposal or asked for release notices of a set on Bandledger. Choose immediate notices or a daily digest on your account page.";
 const FOOTER_REASON = "You receive this because you take part in a proposal on Bandledger. Choose immediate notices or a daily digest on your account page.";
 
 /** One notice as one message: its lines as paragraphs and a button to the proposal. */
@@ -75,11 +76,18 @@ export function noticeMail(to: Recipient, notice: Pick<NoticeContent, "subject" 
   });
 }
 
+// What a digest's notices are about, from their kinds: proposals (proposal.*), sets (set.*, release notices), or both.
+function digestTopic(notices: Pick<NoticeContent, "kind">[]): string {
+  const sets = notices.filter((n) => n.kind.startsWith("set.")).length;
+  return sets === 0 ? "proposals" : sets === notices.length ? "sets" : "proposals and sets";
+}
+
 /** The daily digest: every waiting notice of one person, oldest first, each with its link. */
-export function digestMail(to: Recipient, notices: Pick<NoticeContent, "subject" | "bodyText" | "link">[], publicUrl: string): OutgoingMail {
+export function digestMail(to: Recipient, notices: Pick<NoticeContent, "kind" | "subject" | "bodyText" | "link">[], publicUrl: string): OutgoingMail {
+  const topic = digestTopic(notices);
   return layout({
     to: to.email,
-    subject: `Bandledger digest: ${notices.length} notice${notices.length === 1 ? "" : "s"} about proposals`,
+    subject: `Bandledger digest: ${notices.length} notice${notices.length === 1 ? "" : "s"} about ${topic}`,
     greeting: `Hello ${to.name},`,
     blocks: [
       { kind: "p", text: `Since your last digest: ${notices.length} notice${notices.length === 1 ? "" : "s"}.` },
@@ -90,6 +98,6 @@ export function digestMail(to: Recipient, notices: Pick<NoticeContent, "subject"
       ]),
     ],
     publicUrl,
-    reason: FOOTER_REASON,
+    reason: topic === "proposals" ? FOOTER_REASON : DIGEST_REASON_WITH_SETS,
   });
 }

@@ -82,7 +82,7 @@ export async function sendDigests(): Promise<DigestRun> {
           .orderBy(asc(notices.id))
           .for("update");
         if (rows.length === 0) return 0;
-        const items = rows.map((r) => ({ subject: r.notice.subject, bodyText: r.notice.bodyText, link: r.notice.link ?? env().BANDLEDGER_PUBLIC_URL }));
+        const items = rows.map((r) => ({ kind: r.notice.kind, subject: r.notice.subject, bodyText: r.notice.bodyText, link: r.notice.link ?? env().BANDLEDGER_PUBLIC_URL }));
         await sendMail(digestMail({ email: rows[0].email, name: rows[0].name }, items, env().BANDLEDGER_PUBLIC_URL));
         await tx.update(notices).set({ sentAt: sql`NOW(3)` }).where(inArray(notices.id, rows.map((r) => r.notice.id)));
         return rows.length;
